@@ -1,0 +1,81 @@
+package decomp
+
+import (
+	"context"
+	"fmt"
+	"runtime"
+
+	"golang.org/x/sync/errgroup"
+)
+
+// Evaluator solves every block at the requested prices, writing block k's
+// answer into answers[k]. It is the single seam through which blocks are
+// evaluated: the local pool below runs goroutines on this machine; an
+// evaluator that ships requests to remote workers can take its place
+// without any change to the engine.
+//
+// An evaluator must leave answers exactly as the blocks wrote them, in
+// block order, whatever its scheduling, so that the engine's reduction is
+// deterministic.
+type Evaluator interface {
+	Evaluate(ctx context.Context, blocks []Block, req *Request, answers []Answer) error
+}
+
+// Pool evaluates blocks on a bounded number of local goroutines. Blocks are
+// handed out in contiguous chunks so that a hundred thousand tiny blocks
+// do not cost a goroutine each. The zero value uses GOMAXPROCS workers.
+type Pool struct {
+	// Workers bounds the goroutines working at once; <= 0 means GOMAXPROCS.
+	Workers int
+	// Chunk is the number of blocks per task; <= 0 chooses about eight
+	// tasks per worker.
+	Chunk int
+}
+
+// Evaluate implements Evaluator.
+func (p Pool) Evaluate(ctx context.Context, blocks []Block, req *Request, answers []Answer) error {
+	workers := p.Workers
+	if workers <= 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	n := len(blocks)
+	if workers == 1 || n <= 1 {
+		for k := range blocks {
+			if err := solveOne(ctx, blocks, k, req, answers); err != nil {
+				return err
+			}
+		}
+		return nil
+	}
+	chunk := p.Chunk
+	if chunk <= 0 {
+		chunk = (n + 8*workers - 1) / (8 * workers)
+		if chunk < 1 {
+			chunk = 1
+		}
+	}
+	g, gctx := errgroup.WithContext(ctx)
+	g.SetLimit(workers)
+	for lo := 0; lo < n; lo += chunk {
+		hi := min(lo+chunk, n)
+		g.Go(func() error {
+			for k := lo; k < hi; k++ {
+				if err := solveOne(gctx, blocks, k, req, answers); err != nil {
+					return err
+				}
+			}
+			return nil
+		})
+	}
+	return g.Wait()
+}
+
+func solveOne(ctx context.Context, blocks []Block, k int, req *Request, answers []Answer) error {
+	if err := ctx.Err(); err != nil {
+		return err
+	}
+	if err := blocks[k].Solve(ctx, req, &answers[k]); err != nil {
+		return fmt.Errorf("block %d: %w", k, err)
+	}
+	return nil
+}

@@ -1,0 +1,101 @@
+package decomp
+
+import "math"
+
+// RoundState is what a price-update method sees after a round. Methods
+// must not modify it.
+type RoundState struct {
+	Round int
+	Sense Sense
+	Rows  []Row
+	// Value is L at the current prices; Bound is the best L so far.
+	Value, Bound float64
+	// Improved reports whether this round improved the best bound.
+	Improved bool
+	// Target is the value the step aims at: the best plan value when a
+	// plan exists, else an estimate beyond the bound.
+	Target  float64
+	HasPlan bool
+	// Subgradient is use − rhs, projected: components that would push a
+	// price at zero out of its valid sign are set to zero.
+	Subgradient []float64
+	// Answers are the block answers of this round (for rules that use
+	// block primal answers).
+	Answers []Answer
+}
+
+// Method updates prices between rounds. The engine projects the prices
+// onto their valid signs after every update and owns the round loop,
+// limits and bookkeeping.
+type Method interface {
+	// Init prepares the method for a problem with the given rows.
+	Init(sense Sense, rows []Row)
+	// Update moves prices in place and returns the step length used.
+	Update(s *RoundState, prices []float64) float64
+}
+
+// Subgradient is the classical subgradient rule with a Polyak-type step
+//
+//	t = θ · |target − L| / ||g||²
+//
+// moving the prices along g (towards a better bound), where θ is halved
+// after Patience rounds in a row without a better bound (Held & Karp
+// 1971; Held, Wolfe & Crowder 1974). The zero value uses θ = 2 and
+// Patience = 20.
+type Subgradient struct {
+	Theta    float64 // starting θ; <= 0 means 2
+	Patience int     // non-improving rounds before halving θ; <= 0 means 20
+	MinTheta float64 // θ never drops below this; <= 0 means 1e-6
+
+	theta float64
+	idle  int
+}
+
+// Init implements Method.
+func (m *Subgradient) Init(Sense, []Row) {
+	m.theta = m.Theta
+	if m.theta <= 0 {
+		m.theta = 2
+	}
+	m.idle = 0
+}
+
+// CurrentTheta returns the θ in use.
+func (m *Subgradient) CurrentTheta() float64 { return m.theta }
+
+// Update implements Method.
+func (m *Subgradient) Update(s *RoundState, prices []float64) float64 {
+	patience := m.Patience
+	if patience <= 0 {
+		patience = 20
+	}
+	minTheta := m.MinTheta
+	if minTheta <= 0 {
+		minTheta = 1e-6
+	}
+	if s.Improved {
+		m.idle = 0
+	} else {
+		m.idle++
+		if m.idle >= patience {
+			m.theta = math.Max(m.theta/2, minTheta)
+			m.idle = 0
+		}
+	}
+	norm2 := 0.0
+	for _, g := range s.Subgradient {
+		norm2 += g * g
+	}
+	if norm2 == 0 {
+		return 0
+	}
+	t := m.theta * math.Abs(s.Target-s.Value) / norm2
+	dir := 1.0
+	if s.Sense == Maximise {
+		dir = -1
+	}
+	for r, g := range s.Subgradient {
+		prices[r] += dir * t * g
+	}
+	return t
+}

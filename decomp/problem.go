@@ -1,0 +1,221 @@
+package decomp
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math"
+)
+
+// Sense is the direction of optimisation.
+type Sense int8
+
+// Objective senses.
+const (
+	Minimise Sense = iota
+	Maximise
+)
+
+// String returns "min" or "max".
+func (s Sense) String() string {
+	if s == Maximise {
+		return "max"
+	}
+	return "min"
+}
+
+// Better reports whether value a is strictly better than b in this sense.
+func (s Sense) Better(a, b float64) bool {
+	if s == Maximise {
+		return a > b
+	}
+	return a < b
+}
+
+// RowSense is the comparison of a coupling row.
+type RowSense int8
+
+// Row senses.
+const (
+	LessEqual RowSense = iota
+	GreaterEqual
+	Equal
+)
+
+// String returns "<=", ">=" or "=".
+func (r RowSense) String() string {
+	switch r {
+	case GreaterEqual:
+		return ">="
+	case Equal:
+		return "="
+	}
+	return "<="
+}
+
+// Row is a coupling row: the blocks' summed use compared with RHS.
+type Row struct {
+	Name  string
+	Sense RowSense
+	RHS   float64
+}
+
+// Entry is one non-zero of a sparse vector: an index and a value.
+// In a block's use it indexes coupling rows; in a block's primal answer it
+// indexes the block's own variables.
+type Entry struct {
+	Index int
+	Value float64
+}
+
+// Request is what a block is asked to solve in one round: its exact optimum
+// of own cost plus priced use of the coupling rows, in the given sense.
+// Blocks must not modify it.
+type Request struct {
+	Sense  Sense
+	Prices []float64 // one per coupling row, indexed like Problem.Rows
+}
+
+// Answer is a block's exact optimum at the requested prices.
+//
+// A block may reuse the slices it finds in the Answer from the previous
+// round (truncate and append), which keeps rounds free of allocation.
+type Answer struct {
+	// Value is own cost plus Σ price·use at the block's optimum.
+	Value float64
+	// Cost is the block's own cost (or profit) at that optimum.
+	Cost float64
+	// Use is the sparse use of coupling rows (Index = row).
+	Use []Entry
+	// Primal lists the block's own variables at non-zero value
+	// (Index = the block's local variable number). Repairers and price
+	// rules that average primal answers read it.
+	Primal []Entry
+}
+
+// Block is one independent piece of the problem. Solve must return the
+// exact optimum (a heuristic answer would make the bound invalid).
+//
+// The engine never calls Solve on the same block from two goroutines at
+// once, so a block may keep scratch space of its own.
+type Block interface {
+	Solve(ctx context.Context, req *Request, ans *Answer) error
+}
+
+// Plan is a feasible solution found by a repairer.
+type Plan struct {
+	// Value is the plan's objective value.
+	Value float64
+	// Use is the dense use of every coupling row by the plan, indexed like
+	// Problem.Rows; the result reports slack and binding rows from it.
+	Use []float64
+	// Detail is the family's own representation of the plan; the engine
+	// passes it through untouched.
+	Detail any
+}
+
+// RepairInput is what a repairer sees in a round.
+type RepairInput struct {
+	Round   int
+	Final   bool      // the last repair of the run
+	Sense   Sense     // objective sense
+	Prices  []float64 // prices at which Answers were computed
+	Answers []Answer  // one per block, in block order
+	Best    *Plan     // best plan so far, or nil
+	Seed    uint64    // derived from Settings.Seed and Round, for reproducible randomness
+}
+
+// Repairer turns block answers into a feasible plan. It returns nil (and no
+// error) when it finds none. It must stop promptly when ctx is cancelled,
+// returning the best plan it has.
+type Repairer interface {
+	Repair(ctx context.Context, in *RepairInput) (*Plan, error)
+}
+
+// Problem is a decomposed optimisation problem: blocks tied by coupling
+// rows.
+type Problem struct {
+	Name   string
+	Sense  Sense
+	Rows   []Row
+	Blocks []Block
+	// Prices, when not nil, are the starting prices (projected onto the
+	// valid signs before use); otherwise prices start at zero.
+	Prices []float64
+	// IntegralObjective states that every feasible plan has an integral
+	// value, so the bound may be rounded (up when minimising, down when
+	// maximising) when judging whether a plan is proved optimal.
+	IntegralObjective bool
+	// Repair is optional; without it the run gives a bound only.
+	Repair Repairer
+}
+
+// Validate checks the problem's shape.
+func (p *Problem) Validate() error {
+	if p == nil {
+		return errors.New("decomp: nil problem")
+	}
+	if p.Sense != Minimise && p.Sense != Maximise {
+		return fmt.Errorf("decomp: problem %q: unknown objective sense %d", p.Name, p.Sense)
+	}
+	if len(p.Blocks) == 0 {
+		return fmt.Errorf("decomp: problem %q has no blocks", p.Name)
+	}
+	for i, r := range p.Rows {
+		if r.Sense != LessEqual && r.Sense != GreaterEqual && r.Sense != Equal {
+			return fmt.Errorf("decomp: problem %q: row %d (%s): unknown sense %d", p.Name, i, r.Name, r.Sense)
+		}
+		if math.IsNaN(r.RHS) || math.IsInf(r.RHS, 0) {
+			return fmt.Errorf("decomp: problem %q: row %d (%s): right-hand side %v is not finite", p.Name, i, r.Name, r.RHS)
+		}
+	}
+	for i, b := range p.Blocks {
+		if b == nil {
+			return fmt.Errorf("decomp: problem %q: block %d is nil", p.Name, i)
+		}
+	}
+	if p.Prices != nil && len(p.Prices) != len(p.Rows) {
+		return fmt.Errorf("decomp: problem %q: %d starting prices for %d rows", p.Name, len(p.Prices), len(p.Rows))
+	}
+	return nil
+}
+
+// PriceSign returns the sign a multiplier must have for a row of the given
+// sense in a problem of the given objective sense: +1 (non-negative), -1
+// (non-positive) or 0 (free). See the table in the package doc.
+func PriceSign(obj Sense, row RowSense) int {
+	switch row {
+	case Equal:
+		return 0
+	case LessEqual:
+		if obj == Minimise {
+			return 1
+		}
+		return -1
+	default:
+		if obj == Minimise {
+			return -1
+		}
+		return 1
+	}
+}
+
+// Project moves prices onto their valid signs in place.
+func Project(obj Sense, rows []Row, prices []float64) {
+	for r := range rows {
+		switch PriceSign(obj, rows[r].Sense) {
+		case 1:
+			if !(prices[r] >= 0) {
+				prices[r] = 0
+			}
+		case -1:
+			if !(prices[r] <= 0) {
+				prices[r] = 0
+			}
+		default:
+			if math.IsNaN(prices[r]) {
+				prices[r] = 0
+			}
+		}
+	}
+}
