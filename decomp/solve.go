@@ -66,7 +66,11 @@ type Settings struct {
 
 // Progress is what an observer sees after each round.
 type Progress struct {
-	Record  RoundRecord
+	Record RoundRecord
+	// Prices are the prices at which this round's L was computed (the
+	// method has already moved r.prices on, so this is a copy kept only
+	// when an observer is set).
+	Prices  []float64
 	Problem *Problem
 	HasPlan bool
 }
@@ -238,6 +242,10 @@ func (r *runner) loop(ctx context.Context) (*Result, error) {
 		} else {
 			idle++
 		}
+		var seen []float64
+		if s.Observer != nil {
+			seen = append(seen, r.prices...)
+		}
 		norm := r.project()
 		rec := RoundRecord{Round: round, Elapsed: time.Since(r.start), Value: value, Bound: r.bound, PlanValue: math.NaN()}
 		if r.plan != nil {
@@ -263,7 +271,7 @@ func (r *runner) loop(ctx context.Context) (*Result, error) {
 		}
 		r.history = append(r.history, rec)
 		if s.Observer != nil {
-			s.Observer.Observe(&Progress{Record: rec, Problem: p, HasPlan: r.plan != nil})
+			s.Observer.Observe(&Progress{Record: rec, Prices: seen, Problem: p, HasPlan: r.plan != nil})
 		}
 	}
 	// A last repair from the latest answers; when the run was cut short it

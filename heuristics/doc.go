@@ -1,0 +1,25 @@
+// Package heuristics turns relaxed answers into feasible plans and improves
+// them.
+//
+// In the solve flow (file -> family model -> engine problem -> rounds ->
+// result -> report) the engine prices the coupling rows of a separable
+// problem and solves each block on its own; the blocks' answers then usually
+// break the coupling rows. Every few rounds the engine hands such an answer to
+// this package, which builds a feasible plan (the primal bound of the round)
+// and improves it by local search.
+//
+// The package works on one family-neutral model, the capacitated assignment
+// problem ([Assignment]): every item goes to exactly one resource, each pair
+// has a cost and a use of the resource's capacity. The generalized assignment
+// problem maps to it directly (jobs are items, agents are resources), and so
+// does single-source capacitated facility location once the open sites are
+// fixed (customers are items, open sites are resources, the use of a pair is
+// the customer's demand).
+//
+// [Repair] keeps what the relaxation decided where it can, inserts the rest by
+// regret and, on tight instances, runs a penalised search on capacity excess
+// until the plan fits. [Improve] runs a first-improvement descent with shift
+// and swap moves followed by a tabu search that may cross infeasible regions,
+// with an adaptive penalty on capacity excess. Both are deterministic for a
+// given seed; budgets count moves, never wall-clock time.
+package heuristics

@@ -1,0 +1,150 @@
+package heuristics
+
+import (
+	"context"
+	"math/rand/v2"
+)
+
+// ImproveSettings bounds the work of Improve. The zero value means defaults.
+type ImproveSettings struct {
+	// Moves is the number of tabu-search moves after the descent; 0 means
+	// 40 per item plus 2000, a negative value skips the tabu search.
+	Moves int
+	// Stall is the number of moves without a new best assignment after
+	// which the search goes back to the best one and perturbs it; 0 means
+	// 3 per item plus 100.
+	Stall int
+}
+
+func (st ImproveSettings) withDefaults(n int) ImproveSettings {
+	if st.Moves == 0 {
+		st.Moves = 40*n + 2000
+	}
+	if st.Stall <= 0 {
+		st.Stall = 3*n + 100
+	}
+	return st
+}
+
+// Improve runs local search from assign (assign[j] = resource of item j) and
+// returns the best feasible assignment found with its value, in the sense of
+// p. It first applies improving shift and swap moves (first improvement),
+// then runs a tabu search whose moves are shifts, swaps and two-link ejection
+// chains (an item enters a resource and another item leaves it for a third
+// one); the search may cross over-capacity assignments, which are penalised
+// by per-resource weights raised while a resource stays over and lowered
+// while the assignment fits. After s.Stall moves without a new best it goes
+// back to the best assignment, re-solves the items of every pair of
+// resources by a small branch and bound and, if that finds nothing, perturbs
+// it with a few random shifts. The budget is counted in moves, so the result
+// depends only on the input and rng.
+//
+// When ctx is cancelled Improve stops and returns the best so far. The input
+// should be feasible; an over-capacity input is searched from as well, and
+// when no feasible assignment is found (or the input is malformed or uses a
+// forbidden pair) Improve returns a copy of the input and the worst value of
+// the sense (+Inf when minimising, -Inf when maximising). Improve never
+// returns a worse value than that of a feasible input.
+func Improve(ctx context.Context, p *Assignment, assign []int, s ImproveSettings, rng *rand.Rand) ([]int, float64) {
+	in := append([]int(nil), assign...)
+	md, err := compile(p, nil)
+	if err != nil || len(assign) != md.n {
+		return in, p.worst()
+	}
+	for j, i := range assign {
+		if i < 0 || i >= md.m || md.cost[i*md.n+j] > maxFinite {
+			return in, p.worst()
+		}
+	}
+	if md.n == 0 {
+		return in, 0
+	}
+	s = s.withDefaults(md.n)
+	srch := newSearch(md, assign, rng)
+	if srch.over == 0 {
+		srch.descend(1 << 30)
+	}
+	if s.Moves > 0 && md.m > 1 {
+		srch.tabuSearch(ctx, s.Moves, s.Stall, false)
+	}
+	if !srch.haveBest {
+		return in, p.worst()
+	}
+	// Polish the best assignment.
+	copy(srch.asg, srch.best)
+	srch.recompute()
+	srch.descend(1 << 30)
+	if ctx.Err() == nil && srch.pairOpt(pairNodes) {
+		srch.descend(1 << 30)
+	}
+	out := append([]int(nil), srch.best...)
+	v, _ := p.Evaluate(out)
+	return out, v
+}
+
+// pairNodes bounds each two-resource branch and bound of pairOpt.
+const pairNodes = 5000
+
+const maxFinite = 1.7976931348623157e308
+
+// tabuSearch runs up to moves tabu moves. With untilFeasible it stops at the
+// first feasible assignment.
+func (s *search) tabuSearch(ctx context.Context, moves, stall int, untilFeasible bool) {
+	const up, down = 1.05, 1 / 1.05
+	lastBest := 0
+	for t := 0; t < moves; t++ {
+		if t&31 == 0 && ctx.Err() != nil {
+			return
+		}
+		if !s.step() {
+			// every move tabu: forget the tabu list
+			for k := range s.tabu {
+				s.tabu[k] = 0
+			}
+			continue
+		}
+		if s.over > 0 {
+			for i, l := range s.load {
+				if l > s.limit[i] {
+					s.alpha[i] *= up
+				}
+			}
+		} else {
+			for i := range s.alpha {
+				s.alpha[i] *= down
+			}
+		}
+		if s.over == 0 {
+			if s.record() {
+				lastBest = t
+			}
+			if untilFeasible {
+				return
+			}
+		}
+		if t-lastBest > stall && s.haveBest {
+			s.restart()
+			lastBest = t
+		}
+	}
+}
+
+// restart returns to the best assignment and shifts a few random items to
+// random allowed resources.
+func (s *search) restart() {
+	copy(s.asg, s.best)
+	s.recompute()
+	if s.pairOpt(pairNodes) {
+		s.recompute()
+		return
+	}
+	kicks := 2 + s.n/50
+	for r := 0; r < kicks; r++ {
+		j := s.rng.IntN(s.n)
+		i := s.rng.IntN(s.m)
+		if i != s.asg[j] && s.model.cost[i*s.n+j] <= maxFinite {
+			s.shift(j, i)
+		}
+	}
+	s.recompute()
+}

@@ -1,0 +1,388 @@
+package gap
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"sort"
+
+	"pincer/decomp"
+	"pincer/heuristics"
+	"pincer/subproblem"
+)
+
+// Relaxation chooses which rows of the assignment model are priced.
+type Relaxation int8
+
+const (
+	// KnapsackRelaxation prices the "each job exactly once" rows: one 0-1
+	// knapsack block per agent. It is the stronger of the two and the
+	// default.
+	KnapsackRelaxation Relaxation = iota
+	// ChoiceRelaxation prices the agent capacity rows: one choose-one block
+	// per job. It is cheap, and its best bound equals the LP relaxation
+	// (Geoffrion 1974: the blocks have the integrality property).
+	ChoiceRelaxation
+)
+
+// String returns "knapsack" or "choice".
+func (r Relaxation) String() string {
+	if r == ChoiceRelaxation {
+		return "choice"
+	}
+	return "knapsack"
+}
+
+// ParseRelaxation reads "knapsack" or "choice".
+func ParseRelaxation(s string) (Relaxation, error) {
+	switch s {
+	case "knapsack", "":
+		return KnapsackRelaxation, nil
+	case "choice":
+		return ChoiceRelaxation, nil
+	}
+	return 0, fmt.Errorf("unknown relaxation %q (want knapsack or choice)", s)
+}
+
+// Options configure the engine problem built from an instance. The zero
+// value minimises with the knapsack relaxation and default repair effort.
+type Options struct {
+	Maximise   bool
+	Relaxation Relaxation
+	// Improve bounds the local search after each repair; the zero value
+	// means the heuristics package defaults.
+	Improve heuristics.ImproveSettings
+	// FinalImprove bounds the local search of the last repair; the zero
+	// value means ten times the default move budget.
+	FinalImprove heuristics.ImproveSettings
+}
+
+// NewProblem builds the engine problem of an instance: its blocks, coupling
+// rows, starting prices and repair. The plan's Detail is the assignment as
+// []int (job -> agent, 0-based).
+func NewProblem(in *Instance, opt Options) (*decomp.Problem, error) {
+	if err := in.Validate(); err != nil {
+		return nil, err
+	}
+	sense := decomp.Minimise
+	if opt.Maximise {
+		sense = decomp.Maximise
+	}
+	p := &decomp.Problem{Name: in.Name, Sense: sense, IntegralObjective: true}
+	switch opt.Relaxation {
+	case KnapsackRelaxation:
+		p.Rows = make([]decomp.Row, in.Jobs)
+		for j := range p.Rows {
+			p.Rows[j] = decomp.Row{Name: fmt.Sprintf("job %d", j+1), Sense: decomp.Equal, RHS: 1}
+		}
+		p.Blocks = make([]decomp.Block, in.Agents)
+		for i := range p.Blocks {
+			p.Blocks[i] = &agentBlock{cost: in.Cost[i], use: in.Use[i], capacity: in.Capacity[i],
+				profit: make([]float64, in.Jobs), take: make([]bool, in.Jobs)}
+		}
+		p.Prices = knapsackStartPrices(in, opt.Maximise)
+	case ChoiceRelaxation:
+		p.Rows = make([]decomp.Row, in.Agents)
+		for i := range p.Rows {
+			p.Rows[i] = decomp.Row{Name: fmt.Sprintf("agent %d", i+1), Sense: decomp.LessEqual, RHS: float64(in.Capacity[i])}
+		}
+		p.Blocks = make([]decomp.Block, in.Jobs)
+		for j := range p.Blocks {
+			c := &subproblem.Choice{}
+			idx := make([]int, 0, in.Agents)
+			for i := 0; i < in.Agents; i++ {
+				// A job whose use exceeds an agent's whole capacity can
+				// never go there; leaving the option out keeps the bound
+				// valid and makes it stronger.
+				if in.Use[i][j] <= in.Capacity[i] {
+					c.Options = append(c.Options, subproblem.Option{
+						Cost: float64(in.Cost[i][j]),
+						Use:  []decomp.Entry{{Index: i, Value: float64(in.Use[i][j])}},
+					})
+					idx = append(idx, i)
+				}
+			}
+			if len(c.Options) == 0 {
+				return nil, fmt.Errorf("gap: instance %q: job %d fits no agent (its use exceeds every capacity)", in.Name, j+1)
+			}
+			p.Blocks[j] = &jobBlock{Choice: c, agents: idx}
+		}
+	default:
+		return nil, fmt.Errorf("gap: unknown relaxation %d", opt.Relaxation)
+	}
+	p.Repair = newRepairer(in, opt)
+	return p, nil
+}
+
+// knapsackStartPrices starts each job's price at minus its second-best
+// cost, so that in the first round a job tempts only the agents that serve
+// it better than its runner-up (a common starting rule for this
+// relaxation, e.g. Fisher 1981).
+func knapsackStartPrices(in *Instance, maximise bool) []float64 {
+	prices := make([]float64, in.Jobs)
+	for j := range prices {
+		best, second := math.Inf(1), math.Inf(1)
+		for i := 0; i < in.Agents; i++ {
+			c := float64(in.Cost[i][j])
+			if maximise {
+				c = -c
+			}
+			if c < best {
+				best, second = c, best
+			} else if c < second {
+				second = c
+			}
+		}
+		if math.IsInf(second, 1) {
+			second = best
+		}
+		if maximise {
+			second = -second
+		}
+		prices[j] = -second
+	}
+	return prices
+}
+
+// agentBlock is agent i's 0-1 knapsack: take the jobs whose priced cost
+// c_ij + λ_j is favourable, within the agent's capacity.
+type agentBlock struct {
+	cost, use []int64
+	capacity  int64
+	solver    subproblem.Knapsack
+	profit    []float64
+	take      []bool
+}
+
+func (b *agentBlock) Solve(_ context.Context, req *decomp.Request, ans *decomp.Answer) error {
+	sign := -1.0 // minimising cost = maximising its negative
+	if req.Sense == decomp.Maximise {
+		sign = 1
+	}
+	for j, c := range b.cost {
+		b.profit[j] = sign * (float64(c) + req.Prices[j])
+	}
+	v, err := b.solver.Solve(b.profit, b.use, b.capacity, b.take)
+	if err != nil {
+		return err
+	}
+	ans.Value = sign * v
+	ans.Cost = 0
+	ans.Use = ans.Use[:0]
+	ans.Primal = ans.Primal[:0]
+	for j, t := range b.take {
+		if t {
+			ans.Cost += float64(b.cost[j])
+			ans.Use = append(ans.Use, decomp.Entry{Index: j, Value: 1})
+			ans.Primal = append(ans.Primal, decomp.Entry{Index: j, Value: 1})
+		}
+	}
+	return nil
+}
+
+// jobBlock is job j choosing its agent; agents maps option to agent.
+type jobBlock struct {
+	*subproblem.Choice
+	agents []int
+}
+
+// repairer turns block answers into an assignment with the shared
+// assignment heuristics.
+type repairer struct {
+	in    *Instance
+	opt   Options
+	model *heuristics.Assignment
+}
+
+func newRepairer(in *Instance, opt Options) *repairer {
+	m := &heuristics.Assignment{
+		Cost:     make([][]float64, in.Agents),
+		Weight:   make([][]float64, in.Agents),
+		Capacity: make([]float64, in.Agents),
+		Maximise: opt.Maximise,
+	}
+	for i := 0; i < in.Agents; i++ {
+		m.Cost[i] = make([]float64, in.Jobs)
+		m.Weight[i] = make([]float64, in.Jobs)
+		for j := 0; j < in.Jobs; j++ {
+			m.Cost[i][j] = float64(in.Cost[i][j])
+			m.Weight[i][j] = float64(in.Use[i][j])
+		}
+		m.Capacity[i] = float64(in.Capacity[i])
+	}
+	return &repairer{in: in, opt: opt, model: m}
+}
+
+func (r *repairer) Repair(ctx context.Context, rin *decomp.RepairInput) (*decomp.Plan, error) {
+	in := r.in
+	relaxed := make([][]int, in.Agents)
+	priced := make([][]float64, in.Agents)
+	for i := range priced {
+		priced[i] = make([]float64, in.Jobs)
+	}
+	switch r.opt.Relaxation {
+	case KnapsackRelaxation:
+		for i := range relaxed {
+			for _, e := range rin.Answers[i].Primal {
+				relaxed[i] = append(relaxed[i], e.Index)
+			}
+			for j := 0; j < in.Jobs; j++ {
+				priced[i][j] = float64(in.Cost[i][j]) + rin.Prices[j]
+			}
+		}
+	default:
+		for j := range rin.Answers {
+			jb := jobAgents(in, j)
+			i := jb[rin.Answers[j].Primal[0].Index]
+			relaxed[i] = append(relaxed[i], j)
+		}
+		for i := range priced {
+			for j := 0; j < in.Jobs; j++ {
+				priced[i][j] = float64(in.Cost[i][j]) + rin.Prices[i]*float64(in.Use[i][j])
+			}
+		}
+	}
+	rng := rand.New(rand.NewPCG(rin.Seed, 0x6a6f62))
+	assign, ok := heuristics.Repair(r.model, relaxed, priced, rng)
+	if !ok {
+		if rin.Best == nil {
+			return nil, nil
+		}
+		assign = append([]int(nil), rin.Best.Detail.([]int)...)
+	}
+	settings := r.opt.Improve
+	if rin.Final {
+		settings = r.opt.FinalImprove
+		if settings == (heuristics.ImproveSettings{}) {
+			settings.Moves = 10 * (40*in.Jobs + 2000)
+		}
+		if rin.Best != nil {
+			// The last repair polishes the best plan found so far.
+			assign = append(assign[:0], rin.Best.Detail.([]int)...)
+		}
+	}
+	assign, _ = heuristics.Improve(ctx, r.model, assign, settings, rng)
+	return r.plan(assign), nil
+}
+
+// jobAgents lists, in option order, the agents job j may go to in the
+// choice relaxation (see NewProblem).
+func jobAgents(in *Instance, j int) []int {
+	idx := make([]int, 0, in.Agents)
+	for i := 0; i < in.Agents; i++ {
+		if in.Use[i][j] <= in.Capacity[i] {
+			idx = append(idx, i)
+		}
+	}
+	return idx
+}
+
+// plan computes the value and row use of an assignment in exact integer
+// arithmetic; it returns nil for an infeasible assignment.
+func (r *repairer) plan(assign []int) *decomp.Plan {
+	in := r.in
+	load := make([]int64, in.Agents)
+	var value int64
+	for j, i := range assign {
+		if i < 0 || i >= in.Agents {
+			return nil
+		}
+		load[i] += in.Use[i][j]
+		value += in.Cost[i][j]
+	}
+	for i, l := range load {
+		if l > in.Capacity[i] {
+			return nil
+		}
+	}
+	p := &decomp.Plan{Value: float64(value), Detail: append([]int(nil), assign...)}
+	if r.opt.Relaxation == KnapsackRelaxation {
+		p.Use = make([]float64, in.Jobs)
+		for j := range p.Use {
+			p.Use[j] = 1
+		}
+	} else {
+		p.Use = make([]float64, in.Agents)
+		for i, l := range load {
+			p.Use[i] = float64(l)
+		}
+	}
+	return p
+}
+
+// Resource describes one agent's capacity at the end of a run.
+type Resource struct {
+	Agent    int // 0-based
+	Capacity int64
+	Load     int64 // in the plan; 0 without one
+	// Price is the value of one more unit of capacity at the best prices:
+	// the row price in the choice relaxation, or the LP dual of the
+	// agent's knapsack capacity (the efficiency of its critical job) in the
+	// knapsack relaxation. It is >= 0 for both senses: what a unit more is
+	// worth (cost saved when minimising, profit gained when maximising).
+	Price   float64
+	Binding bool // the agent is full (no job left out fits the slack) in the plan
+}
+
+// Resources reports every agent's capacity, load and price. assign may be
+// nil (no plan).
+func Resources(in *Instance, opt Options, prices []float64, assign []int) []Resource {
+	res := make([]Resource, in.Agents)
+	load := make([]int64, in.Agents)
+	for j, i := range assign {
+		load[i] += in.Use[i][j]
+	}
+	for i := range res {
+		res[i] = Resource{Agent: i, Capacity: in.Capacity[i], Load: load[i]}
+		if opt.Relaxation == ChoiceRelaxation {
+			res[i].Price = math.Abs(prices[i])
+		} else {
+			res[i].Price = criticalRatio(in, i, prices, opt.Maximise)
+		}
+		if assign != nil {
+			slack := in.Capacity[i] - load[i]
+			min := int64(math.MaxInt64)
+			for j := 0; j < in.Jobs; j++ {
+				if assign[j] != i && in.Use[i][j] < min {
+					min = in.Use[i][j]
+				}
+			}
+			res[i].Binding = slack == 0 || slack < min
+		}
+	}
+	return res
+}
+
+// criticalRatio is the LP dual of agent i's capacity in its knapsack at the
+// given job prices: fill by decreasing profit per unit of use; the ratio of
+// the first job that does not fit whole prices the capacity (zero when
+// every profitable job fits).
+func criticalRatio(in *Instance, i int, prices []float64, maximise bool) float64 {
+	type item struct {
+		p float64
+		w int64
+	}
+	var items []item
+	sign := -1.0
+	if maximise {
+		sign = 1
+	}
+	for j := 0; j < in.Jobs; j++ {
+		p := sign * (float64(in.Cost[i][j]) + prices[j])
+		if p > 0 && in.Use[i][j] > 0 {
+			items = append(items, item{p, in.Use[i][j]})
+		}
+	}
+	sort.Slice(items, func(a, b int) bool {
+		return items[a].p*float64(items[b].w) > items[b].p*float64(items[a].w)
+	})
+	room := in.Capacity[i]
+	for _, it := range items {
+		if it.w > room {
+			return it.p / float64(it.w)
+		}
+		room -= it.w
+	}
+	return 0
+}
