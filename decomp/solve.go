@@ -60,7 +60,8 @@ type Settings struct {
 	Evaluator   Evaluator     // block evaluation; nil means Pool{} (GOMAXPROCS workers)
 	Observer    Observer      // sees every round; nil means none
 	// FinalRepairTime bounds the last repair when the run was stopped by
-	// time or interruption; 0 means 2 s.
+	// time or interruption; 0 means a tenth of Time, at least 0.2 s and at
+	// most 2 s (2 s without a time limit).
 	FinalRepairTime time.Duration
 }
 
@@ -169,6 +170,9 @@ func withDefaults(s Settings) Settings {
 	}
 	if s.FinalRepairTime <= 0 {
 		s.FinalRepairTime = 2 * time.Second
+		if s.Time > 0 {
+			s.FinalRepairTime = min(2*time.Second, max(200*time.Millisecond, s.Time/10))
+		}
 	}
 	return s
 }

@@ -1,16 +1,36 @@
 package heuristics
 
 import (
+	"context"
 	"math"
 	"math/rand/v2"
 )
 
+// Neighbourhood bounds. One move of the tabu search looks at window items;
+// for each it evaluates the shift to every resource (O(m)) and swaps with at
+// most swapResources*swapPartners items (O(K)). Ejection chains start from at
+// most ejectStarts overloading shifts and look at ejectPartners items of the
+// overloaded resource each. So a move costs O(window*(m+K)), independent of
+// the number of items once it exceeds window.
+const (
+	window        = 64
+	swapResources = 4
+	swapPartners  = 16
+	ejectStarts   = 8
+	ejectPartners = 8
+	// ctxEvery is how many moves (or items in a descent pass) run between
+	// two looks at the context; a move costs a few microseconds.
+	ctxEvery = 32
+)
+
 // search holds a complete (possibly over-capacity) assignment with its loads
 // and runs the moves shared by the repair's feasibility phase and Improve.
-// All costs are in minimisation sense.
+// All costs are in minimisation sense. A search is reused across calls by a
+// Searcher: reset prepares it for a new model (cost array) and start.
 type search struct {
 	*model
 	rng *rand.Rand
+	ctx context.Context
 
 	asg  []int
 	load []float64
@@ -18,57 +38,83 @@ type search struct {
 	over int     // number of resources above their limit
 
 	alpha []float64 // [i] weight of resource i's capacity excess in the penalised objective
-	tabu  []int     // [i*n+j]: moving item j onto resource i is tabu before this iteration
-	iter  int
-	cands pool
+	tabu  []int32   // [i*n+j]: moving item j onto resource i is tabu before this iteration
+	iter  int32
+
+	members [][]int // [i] items on resource i
+	pos     []int   // [j] index of j in members[asg[j]]
+	order   []int   // a random permutation of the items, scanned cyclically
+	cursor  int
 
 	// scratch of step
-	members [][]int   // [i] items on resource i
-	gain    []float64 // [i*n+j] cost change of shifting j to i
-	minGain []float64 // [i*m+a] least gain of an item on a shifting to i
+	cands   pool
+	win     []int
 	exc     []float64 // [i] weighted excess of resource i
+	topRes  []int     // best few swap resources of the current item
+	topCost []float64
 
 	best     []int
 	bestCost float64
 	haveBest bool
 }
 
-func newSearch(md *model, asg []int, rng *rand.Rand) *search {
+func newSearch(m, n int) *search {
 	s := &search{
-		model: md,
-		rng:   rng,
-		asg:   append([]int(nil), asg...),
-		load:  make([]float64, md.m),
-		tabu:  make([]int, md.m*md.n),
-		best:  make([]int, md.n),
-		cands: pool{size: 32},
-
-		members: make([][]int, md.m),
-		gain:    make([]float64, md.m*md.n),
-		minGain: make([]float64, md.m*md.m),
-		exc:     make([]float64, md.m),
+		asg:     make([]int, n),
+		load:    make([]float64, m),
+		alpha:   make([]float64, m),
+		tabu:    make([]int32, m*n),
+		members: make([][]int, m),
+		pos:     make([]int, n),
+		order:   make([]int, n),
+		best:    make([]int, n),
+		cands:   pool{size: ejectStarts},
+		win:     make([]int, 0, window),
+		exc:     make([]float64, m),
+		topRes:  make([]int, 0, swapResources),
+		topCost: make([]float64, 0, swapResources),
 	}
+	return s
+}
+
+// reset starts a search on md from asg (every entry a valid resource).
+func (s *search) reset(ctx context.Context, md *model, asg []int, rng *rand.Rand) {
+	s.model, s.rng, s.ctx = md, rng, ctx
+	copy(s.asg, asg)
+	for k := range s.tabu {
+		s.tabu[k] = 0
+	}
+	s.iter = 0
+	for j := range s.order {
+		s.order[j] = j
+	}
+	rng.Shuffle(len(s.order), func(a, b int) { s.order[a], s.order[b] = s.order[b], s.order[a] })
+	s.cursor = 0
 	s.recompute()
 	s.bestCost = math.Inf(1)
-	s.alpha = make([]float64, md.m)
+	s.haveBest = false
 	a0 := s.initialAlpha()
 	for i := range s.alpha {
 		s.alpha[i] = a0
 	}
 	s.record()
-	return s
 }
 
-// recompute rebuilds loads, cost and the over count from scratch, which also
-// clears rounding drift.
+func (s *search) cancelled() bool { return s.ctx.Err() != nil }
+
+// recompute rebuilds loads, cost, member lists and the over count from
+// scratch, which also clears rounding drift.
 func (s *search) recompute() {
 	for i := range s.load {
 		s.load[i] = 0
+		s.members[i] = s.members[i][:0]
 	}
 	s.cost = 0
 	for j, i := range s.asg {
 		s.load[i] += s.weight[i*s.n+j]
 		s.cost += s.cost1(i, j)
+		s.pos[j] = len(s.members[i])
+		s.members[i] = append(s.members[i], j)
 	}
 	s.over = 0
 	for i, l := range s.load {
@@ -132,7 +178,16 @@ func (s *search) shift(j, i int) {
 	s.setLoad(i, s.load[i]+s.weight[i*s.n+j])
 	s.cost += s.cost1(i, j) - s.cost1(a, j)
 	s.asg[j] = i
-	s.tabu[a*s.n+j] = s.iter + s.tenure()
+	// member lists: swap j out of a, append it to i
+	ma := s.members[a]
+	p := s.pos[j]
+	last := ma[len(ma)-1]
+	ma[p] = last
+	s.pos[last] = p
+	s.members[a] = ma[:len(ma)-1]
+	s.pos[j] = len(s.members[i])
+	s.members[i] = append(s.members[i], j)
+	s.tabu[a*s.n+j] = s.iter + int32(s.tenure())
 }
 
 func (s *search) setLoad(i int, l float64) {
@@ -151,19 +206,66 @@ func (s *search) setLoad(i int, l float64) {
 // a resource it has left: short and randomised, which worked best on the GAP
 // benchmark types B to D.
 func (s *search) tenure() int {
-	lo := 3 + s.n/200
+	lo := 3 + min(s.n, 2000)/200
 	return lo + s.rng.IntN(2*lo+1)
 }
 
+// partners calls f for the swap partners of item j (on resource a): the
+// members of the swapResources resources with the least cost for j, all of
+// them when a resource holds at most swapPartners items, else swapPartners
+// consecutive ones from a random offset. It is O(m + K).
+func (s *search) partners(j, a int, f func(k, b int)) {
+	n := s.n
+	s.topRes, s.topCost = s.topRes[:0], s.topCost[:0]
+	for b := 0; b < s.m; b++ {
+		c := s.model.cost[b*n+j]
+		if b == a || !(c <= maxFinite) || len(s.members[b]) == 0 {
+			continue
+		}
+		if len(s.topRes) < swapResources {
+			s.topRes = append(s.topRes, b)
+			s.topCost = append(s.topCost, c)
+		} else if c < s.topCost[swapResources-1] {
+			s.topRes[swapResources-1], s.topCost[swapResources-1] = b, c
+		} else {
+			continue
+		}
+		// keep sorted by cost (insertion)
+		for q := len(s.topRes) - 1; q > 0 && s.topCost[q] < s.topCost[q-1]; q-- {
+			s.topRes[q], s.topRes[q-1] = s.topRes[q-1], s.topRes[q]
+			s.topCost[q], s.topCost[q-1] = s.topCost[q-1], s.topCost[q]
+		}
+	}
+	for _, b := range s.topRes {
+		mb := s.members[b]
+		if len(mb) <= swapPartners {
+			for _, k := range mb {
+				f(k, b)
+			}
+			continue
+		}
+		off := s.rng.IntN(len(mb))
+		for q := 0; q < swapPartners; q++ {
+			f(mb[(off+q)%len(mb)], b)
+		}
+	}
+}
+
 // descend applies improving shift and swap moves among feasible assignments
-// (first improvement) until none is left or the budget of moves is spent. It
-// assumes the current assignment is feasible and returns the moves made.
+// (first improvement) until none is left, the budget of moves is spent or
+// ctx is cancelled. It assumes the current assignment is feasible and
+// returns the moves made. One pass costs O(n*m + n*K).
 func (s *search) descend(budget int) int {
 	n := s.n
 	moves := 0
 	for improved := true; improved && moves < budget; {
 		improved = false
-		for j := 0; j < n && moves < budget; j++ {
+		for t := 0; t < n && moves < budget; t++ {
+			if t%ctxEvery == 0 && s.cancelled() {
+				s.record()
+				return moves
+			}
+			j := s.order[t]
 			a := s.asg[j]
 			ca := s.cost1(a, j)
 			for i := 0; i < s.m; i++ {
@@ -178,24 +280,23 @@ func (s *search) descend(budget int) int {
 					a, ca = i, s.model.cost[k]
 				}
 			}
-		}
-		for j := 0; j < n && moves < budget; j++ {
-			for k := j + 1; k < n; k++ {
-				a, b := s.asg[j], s.asg[k]
-				if a == b {
-					continue
-				}
-				d := s.model.cost[a*n+k] + s.model.cost[b*n+j] - s.model.cost[a*n+j] - s.model.cost[b*n+k]
-				if !(d < -costEps(s.cost)) {
-					continue
+			// swaps of j with partners on other resources
+			bj, bk, bb, bd := -1, -1, -1, -costEps(s.cost)
+			s.partners(j, a, func(k, b int) {
+				d := s.model.cost[a*n+k] + s.model.cost[b*n+j] - ca - s.model.cost[b*n+k]
+				if !(d < bd) {
+					return
 				}
 				la := s.load[a] - s.weight[a*n+j] + s.weight[a*n+k]
 				lb := s.load[b] - s.weight[b*n+k] + s.weight[b*n+j]
 				if la > s.limit[a] || lb > s.limit[b] {
-					continue
+					return
 				}
-				s.shift(j, b)
-				s.shift(k, a)
+				bj, bk, bb, bd = j, k, b, d
+			})
+			if bj >= 0 {
+				s.shift(bj, bb)
+				s.shift(bk, a)
 				moves++
 				improved = true
 			}
@@ -206,7 +307,7 @@ func (s *search) descend(budget int) int {
 }
 
 // move is one neighbour of the current assignment: item j to resource i, and
-// when k >= 0 item k to j's present resource.
+// when k >= 0 item k to resource c.
 type move struct {
 	j, i, k, c int
 	val        float64
@@ -264,51 +365,72 @@ func (p *pool) keep(j, i int, val float64) {
 	p.bar = p.items[p.worst].val
 }
 
-// step makes the best admissible move (shift, swap or ejection chain) on the
-// penalised objective: cost plus, for each resource, its excess weight times
-// its excess. A move is tabu when it puts an item back on a resource it left
-// recently, unless it yields a feasible assignment better than the best one.
-// It returns false when no move is admissible.
+// fillWindow chooses the items whose neighbourhood the next move evaluates:
+// every item when there are at most window of them; otherwise the next
+// items of a random cyclic order and, while some resource is over capacity,
+// for half of the window random items of over-capacity resources.
+func (s *search) fillWindow() {
+	s.win = s.win[:0]
+	if s.n <= window {
+		s.win = append(s.win, s.order...)
+		return
+	}
+	w := window
+	if s.over > 0 {
+		for tries := 0; len(s.win) < window/2 && tries < window; tries++ {
+			i := s.rng.IntN(s.m)
+			if s.load[i] <= s.limit[i] || len(s.members[i]) == 0 {
+				continue
+			}
+			s.win = append(s.win, s.members[i][s.rng.IntN(len(s.members[i]))])
+		}
+		w -= len(s.win)
+	}
+	for q := 0; q < w; q++ {
+		s.win = append(s.win, s.order[s.cursor])
+		s.cursor++
+		if s.cursor == s.n {
+			s.cursor = 0
+		}
+	}
+}
+
+// step makes the best admissible move (shift, swap or ejection chain) among
+// those of the window's items on the penalised objective: cost plus, for
+// each resource, its excess weight times its excess. A move is tabu when it
+// puts an item back on a resource it left recently, unless it yields a
+// feasible assignment better than the best one. It returns false when no
+// move is admissible. Its cost is O(window*(m+K)).
 func (s *search) step() bool {
 	n, m := s.n, s.m
 	cost, weight, limit, load, asg := s.model.cost, s.weight, s.limit, s.load, s.asg
-	alpha, gain, minGain, exc := s.alpha, s.gain, s.minGain, s.exc
+	alpha, exc := s.alpha, s.exc
 	bestLimit := s.bestCost - costEps(s.bestCost)
 	mv := move{j: -1, val: math.Inf(1)}
 	it := s.iter
 	cands := &s.cands
 	cands.reset()
-	for i := range s.members {
-		s.members[i] = s.members[i][:0]
+	for i := range exc {
 		exc[i] = alpha[i] * s.excess(i, load[i])
 	}
-	for k := range minGain {
-		minGain[k] = math.Inf(1)
-	}
+	s.fillWindow()
 
-	// shifts; also the cost change of every shift (gain) and its minimum
-	// per pair of resources, used to prune swaps
-	for j := 0; j < n; j++ {
+	for _, j := range s.win {
 		a := asg[j]
-		s.members[a] = append(s.members[a], j)
 		ka := a*n + j
 		ca, wa := cost[ka], weight[ka]
 		la := load[a]
 		exA := alpha[a]*s.excess(a, la-wa) - exc[a]
 		aOver := la > limit[a]
 		aOverAfter := la-wa > limit[a]
+		// shifts
 		for i := 0; i < m; i++ {
 			k := i*n + j
 			c := cost[k]
 			if i == a || math.IsInf(c, 1) {
-				gain[k] = math.Inf(1)
 				continue
 			}
 			dc := c - ca
-			gain[k] = dc
-			if dc < minGain[i*m+a] {
-				minGain[i*m+a] = dc
-			}
 			li := load[i]
 			nl := li + weight[k]
 			val := dc + exA
@@ -339,63 +461,44 @@ func (s *search) step() bool {
 			}
 			mv.offer(s, j, i, -1, -1, val)
 		}
-	}
-
-	// swaps of j (on a) with k > j (on b)
-	for j := 0; j < n; j++ {
-		a := asg[j]
-		rowA := a * n
-		waj := weight[rowA+j]
-		la := load[a]
-		for b := 0; b < m; b++ {
-			if b == a {
-				continue
-			}
-			rowB := b * n
-			gj := gain[rowB+j]
-			if gj+minGain[a*m+b]-exc[a]-exc[b] > mv.val {
-				continue
+		// swaps of j (on a) with k (on b)
+		waj := wa
+		s.partners(j, a, func(k, b int) {
+			rowA, rowB := a*n, b*n
+			dc := cost[rowB+j] - ca + cost[rowA+k] - cost[rowB+k]
+			if dc-exc[a]-exc[b] > mv.val || !(dc <= maxFinite) {
+				return
 			}
 			lb := load[b]
-			wbj := weight[rowB+j]
-			for _, k := range s.members[b] {
-				if k <= j {
-					continue
-				}
-				dc := gj + gain[rowA+k]
-				if dc-exc[a]-exc[b] > mv.val {
-					continue
-				}
-				nla := la - waj + weight[rowA+k]
-				nlb := lb - weight[rowB+k] + wbj
-				val := dc - exc[a] - exc[b]
-				if nla > limit[a] {
-					val += alpha[a] * (nla - limit[a])
-				}
-				if nlb > limit[b] {
-					val += alpha[b] * (nlb - limit[b])
-				}
-				if val > mv.val {
-					continue
-				}
-				if s.tabu[rowB+j] > it || s.tabu[rowA+k] > it {
-					if nla > limit[a] || nlb > limit[b] || !(s.cost+dc < bestLimit) {
-						continue
-					}
-					over := s.over
-					if la > limit[a] {
-						over--
-					}
-					if lb > limit[b] {
-						over--
-					}
-					if over != 0 {
-						continue
-					}
-				}
-				mv.offer(s, j, b, k, a, val)
+			nla := la - waj + weight[rowA+k]
+			nlb := lb - weight[rowB+k] + weight[rowB+j]
+			val := dc - exc[a] - exc[b]
+			if nla > limit[a] {
+				val += alpha[a] * (nla - limit[a])
 			}
-		}
+			if nlb > limit[b] {
+				val += alpha[b] * (nlb - limit[b])
+			}
+			if val > mv.val {
+				return
+			}
+			if s.tabu[rowB+j] > it || s.tabu[rowA+k] > it {
+				if nla > limit[a] || nlb > limit[b] || !(s.cost+dc < bestLimit) {
+					return
+				}
+				over := s.over
+				if la > limit[a] {
+					over--
+				}
+				if lb > limit[b] {
+					over--
+				}
+				if over != 0 {
+					return
+				}
+			}
+			mv.offer(s, j, b, k, a, val)
+		})
 	}
 
 	s.ejections(&mv)
@@ -412,7 +515,8 @@ func (s *search) step() bool {
 }
 
 // ejections offers chains of two shifts: a candidate item j moves to resource
-// b, which it overloads, and an item k leaves b for a third resource c.
+// b, which it overloads, and an item k leaves b for a third resource c. At
+// most ejectPartners items k of b are tried per candidate.
 func (s *search) ejections(mv *move) {
 	n, m := s.n, s.m
 	cost, weight, limit, load, alpha := s.model.cost, s.weight, s.limit, s.load, s.alpha
@@ -427,10 +531,13 @@ func (s *search) ejections(mv *move) {
 		dc0 := cost[kbj] - cost[kaj]
 		lb1 := lb + weight[kbj]
 		exB0 := s.excess(b, lb)
-		for k := 0; k < n; k++ {
-			if s.asg[k] != b || k == j {
-				continue
-			}
+		mb := s.members[b]
+		cnt, off := len(mb), 0
+		if cnt > ejectPartners {
+			cnt, off = ejectPartners, s.rng.IntN(len(mb))
+		}
+		for q := 0; q < cnt; q++ {
+			k := mb[(off+q)%len(mb)]
 			kbk := b*n + k
 			nlb := lb1 - weight[kbk]
 			pb := alpha[b] * (s.excess(b, nlb) - exB0)
