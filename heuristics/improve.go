@@ -6,9 +6,17 @@ import (
 )
 
 // ImproveSettings bounds the work of Improve. The zero value means defaults.
+//
+// A move is one step of the tabu search: it evaluates the neighbourhood of a
+// window of at most 64 items (each item's shift to every resource and its
+// swaps with at most 64 partner items on its cheapest other resources) plus
+// at most 8 two-link ejection chains of 8 items each, and makes the best
+// admissible one. A move therefore costs O(m + K) per window item, whatever
+// the number of items n, and the default budget, which is proportional to n,
+// makes the run time of Improve grow about linearly with n*m.
 type ImproveSettings struct {
 	// Moves is the number of tabu-search moves after the descent; 0 means
-	// 40 per item plus 2000, a negative value skips the tabu search.
+	// 20 per item plus 2000, a negative value skips the tabu search.
 	Moves int
 	// Stall is the number of moves without a new best assignment after
 	// which the search goes back to the best one and perturbs it; 0 means
@@ -18,7 +26,7 @@ type ImproveSettings struct {
 
 func (st ImproveSettings) withDefaults(n int) ImproveSettings {
 	if st.Moves == 0 {
-		st.Moves = 40*n + 2000
+		st.Moves = 20*n + 2000
 	}
 	if st.Stall <= 0 {
 		st.Stall = 3*n + 100
@@ -39,46 +47,59 @@ func (st ImproveSettings) withDefaults(n int) ImproveSettings {
 // it with a few random shifts. The budget is counted in moves, so the result
 // depends only on the input and rng.
 //
-// When ctx is cancelled Improve stops and returns the best so far. The input
-// should be feasible; an over-capacity input is searched from as well, and
-// when no feasible assignment is found (or the input is malformed or uses a
-// forbidden pair) Improve returns a copy of the input and the worst value of
-// the sense (+Inf when minimising, -Inf when maximising). Improve never
-// returns a worse value than that of a feasible input.
+// When ctx is cancelled Improve stops within about a millisecond and returns
+// the best so far. The input should be feasible; an over-capacity input is
+// searched from as well, and when no feasible assignment is found (or the
+// input is malformed or uses a forbidden pair) Improve returns a copy of the
+// input and the worst value of the sense (+Inf when minimising, -Inf when
+// maximising). Improve never returns a worse value than that of a feasible
+// input.
+//
+// Improve compiles p on every call; use a [Searcher] for repeated calls.
 func Improve(ctx context.Context, p *Assignment, assign []int, s ImproveSettings, rng *rand.Rand) ([]int, float64) {
+	sr, err := NewSearcher(p)
+	if err != nil {
+		return append([]int(nil), assign...), p.worst()
+	}
+	return sr.Improve(ctx, assign, s, rng)
+}
+
+// Improve is the package-level [Improve] on the compiled assignment.
+func (sr *Searcher) Improve(ctx context.Context, assign []int, s ImproveSettings, rng *rand.Rand) ([]int, float64) {
 	in := append([]int(nil), assign...)
-	md, err := compile(p, nil)
-	if err != nil || len(assign) != md.n {
-		return in, p.worst()
+	md := sr.base
+	if len(assign) != md.n {
+		return in, sr.p.worst()
 	}
 	for j, i := range assign {
 		if i < 0 || i >= md.m || md.cost[i*md.n+j] > maxFinite {
-			return in, p.worst()
+			return in, sr.p.worst()
 		}
 	}
 	if md.n == 0 {
 		return in, 0
 	}
 	s = s.withDefaults(md.n)
-	srch := newSearch(md, assign, rng)
+	srch := sr.srch
+	srch.reset(ctx, md, assign, rng)
 	if srch.over == 0 {
 		srch.descend(1 << 30)
 	}
 	if s.Moves > 0 && md.m > 1 {
-		srch.tabuSearch(ctx, s.Moves, s.Stall, false)
+		srch.tabuSearch(s.Moves, s.Stall, false)
 	}
 	if !srch.haveBest {
-		return in, p.worst()
+		return in, sr.p.worst()
 	}
 	// Polish the best assignment.
 	copy(srch.asg, srch.best)
 	srch.recompute()
 	srch.descend(1 << 30)
-	if ctx.Err() == nil && srch.pairOpt(pairNodes) {
+	if !srch.cancelled() && srch.pairOpt(pairNodes) {
 		srch.descend(1 << 30)
 	}
 	out := append([]int(nil), srch.best...)
-	v, _ := p.Evaluate(out)
+	v, _ := sr.p.Evaluate(out)
 	return out, v
 }
 
@@ -88,18 +109,21 @@ const pairNodes = 5000
 const maxFinite = 1.7976931348623157e308
 
 // tabuSearch runs up to moves tabu moves. With untilFeasible it stops at the
-// first feasible assignment.
-func (s *search) tabuSearch(ctx context.Context, moves, stall int, untilFeasible bool) {
+// first feasible assignment. It stops early when the context is cancelled.
+func (s *search) tabuSearch(moves, stall int, untilFeasible bool) {
 	const up, down = 1.05, 1 / 1.05
 	lastBest := 0
 	for t := 0; t < moves; t++ {
-		if t&31 == 0 && ctx.Err() != nil {
+		if t%ctxEvery == 0 && s.cancelled() {
 			return
 		}
 		if !s.step() {
-			// every move tabu: forget the tabu list
-			for k := range s.tabu {
-				s.tabu[k] = 0
+			// every move of the window is tabu: with a full window,
+			// forget the tabu list; otherwise the next window differs
+			if s.n <= window {
+				for k := range s.tabu {
+					s.tabu[k] = 0
+				}
 			}
 			continue
 		}
