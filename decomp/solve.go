@@ -59,9 +59,11 @@ type Settings struct {
 	Method      Method        // price-update rule; nil means a fresh Subgradient
 	Evaluator   Evaluator     // block evaluation; nil means Pool{} (GOMAXPROCS workers)
 	Observer    Observer      // sees every round; nil means none
-	// FinalRepairTime bounds the last repair when the run was stopped by
-	// time or interruption; 0 means a tenth of Time, at least 0.2 s and at
-	// most 2 s (2 s without a time limit).
+	// FinalRepairTime is kept for the last repair: with a time limit the
+	// rounds stop this long before it, so that the whole run fits in Time;
+	// after an interruption the last repair gets this long. 0 means a
+	// tenth of Time, at least 0.2 s and at most 2 s (2 s without a time
+	// limit).
 	FinalRepairTime time.Duration
 }
 
@@ -143,11 +145,6 @@ func Solve(ctx context.Context, p *Problem, s Settings) (*Result, error) {
 	}
 	start := time.Now()
 	s = withDefaults(s)
-	if s.Time > 0 {
-		var cancel context.CancelFunc
-		ctx, cancel = context.WithTimeout(ctx, s.Time)
-		defer cancel()
-	}
 	run := &runner{p: p, s: s, start: start}
 	return run.loop(ctx)
 }
@@ -191,7 +188,18 @@ type runner struct {
 	history            []RoundRecord
 }
 
-func (r *runner) loop(ctx context.Context) (*Result, error) {
+func (r *runner) loop(parent context.Context) (*Result, error) {
+	// hard ends the whole run; ctx ends the rounds, leaving room for the
+	// last repair inside the time limit.
+	hard, ctx := parent, parent
+	if r.s.Time > 0 {
+		var cancelHard, cancelRounds context.CancelFunc
+		hard, cancelHard = context.WithDeadline(parent, r.start.Add(r.s.Time))
+		defer cancelHard()
+		reserve := min(r.s.FinalRepairTime, r.s.Time/2)
+		ctx, cancelRounds = context.WithDeadline(hard, r.start.Add(r.s.Time-reserve))
+		defer cancelRounds()
+	}
 	p, s := r.p, r.s
 	nrows := len(p.Rows)
 	r.prices = make([]float64, nrows)
@@ -209,7 +217,7 @@ func (r *runner) loop(ctx context.Context) (*Result, error) {
 	round := 0
 	for status == 0 {
 		if ctx.Err() != nil {
-			status = r.stopReason(ctx)
+			status = r.stopReason(parent)
 			break
 		}
 		if s.Rounds > 0 && round >= s.Rounds {
@@ -221,7 +229,7 @@ func (r *runner) loop(ctx context.Context) (*Result, error) {
 		if err := s.Evaluator.Evaluate(ctx, p.Blocks, req, r.answers); err != nil {
 			if ctx.Err() != nil {
 				round--
-				status = r.stopReason(ctx)
+				status = r.stopReason(parent)
 				break
 			}
 			return nil, fmt.Errorf("decomp: round %d: %w", round, err)
@@ -278,13 +286,13 @@ func (r *runner) loop(ctx context.Context) (*Result, error) {
 			s.Observer.Observe(&Progress{Record: rec, Prices: seen, Problem: p, HasPlan: r.plan != nil})
 		}
 	}
-	// A last repair from the latest answers; when the run was cut short it
-	// gets a short detached deadline so that a plan is not lost.
+	// A last repair from the latest answers. After an interruption it gets
+	// a short detached deadline so that a plan is not lost.
 	if round > 0 && status != IntegerClosed {
-		rctx := ctx
-		if ctx.Err() != nil {
+		rctx := hard
+		if parent.Err() != nil {
 			var cancel context.CancelFunc
-			rctx, cancel = context.WithTimeout(context.WithoutCancel(ctx), s.FinalRepairTime)
+			rctx, cancel = context.WithTimeout(context.WithoutCancel(parent), s.FinalRepairTime)
 			defer cancel()
 		}
 		if _, err := r.repair(rctx, round, true); err != nil {
@@ -292,16 +300,21 @@ func (r *runner) loop(ctx context.Context) (*Result, error) {
 		}
 		if r.closed() {
 			status = r.closedStatus()
+		} else if status != TimeLimit && parent.Err() != nil {
+			// The user stopped the last repair: say so.
+			status = Interrupted
 		}
 	}
 	return r.result(status, round), nil
 }
 
-func (r *runner) stopReason(ctx context.Context) Status {
-	if errors.Is(ctx.Err(), context.DeadlineExceeded) {
-		return TimeLimit
+// stopReason tells an interruption (the caller cancelled) from a time
+// limit (ours, or a deadline the caller set).
+func (r *runner) stopReason(parent context.Context) Status {
+	if errors.Is(parent.Err(), context.Canceled) {
+		return Interrupted
 	}
-	return Interrupted
+	return TimeLimit
 }
 
 // reduce sums block values and uses in block order and fills r.sub with

@@ -98,29 +98,14 @@ func tolerance(capacity float64) float64 {
 // searches work on.
 type model struct {
 	m, n   int
-	cost   []float64 // m*n, minimisation sense, +Inf forbidden
-	weight []float64 // m*n
+	cost   []float64 // [j*m+i] item-major, minimisation sense, +Inf forbidden
+	weight []float64 // [j*m+i]
 	limit  []float64 // m, capacity plus tolerance
 }
 
-// compile flattens p. When priced is not nil its entries replace the costs of
-// allowed pairs (in the same sense as p.Cost); non-finite priced entries fall
-// back on the cost.
-func compile(p *Assignment, priced [][]float64) (*model, error) {
-	if err := p.Validate(); err != nil {
-		return nil, err
-	}
+// compile flattens p, which must be valid.
+func compile(p *Assignment) *model {
 	m, n := p.Size()
-	if priced != nil {
-		if len(priced) != m {
-			return nil, fmt.Errorf("heuristics: %d priced rows, want %d", len(priced), m)
-		}
-		for i := range priced {
-			if len(priced[i]) != n {
-				return nil, fmt.Errorf("heuristics: priced row %d has %d entries, want %d", i, len(priced[i]), n)
-			}
-		}
-	}
 	md := &model{
 		m: m, n: n,
 		cost:   make([]float64, m*n),
@@ -134,17 +119,45 @@ func compile(p *Assignment, priced [][]float64) (*model, error) {
 	for i := 0; i < m; i++ {
 		md.limit[i] = p.Capacity[i] + tolerance(p.Capacity[i])
 		for j := 0; j < n; j++ {
-			k := i*n + j
+			k := j*m + i
 			md.weight[k] = p.Weight[i][j]
-			c := p.Cost[i][j]
-			switch {
-			case math.IsInf(c, 0):
+			if c := p.Cost[i][j]; math.IsInf(c, 0) {
 				md.cost[k] = math.Inf(1)
-			case priced != nil && !math.IsInf(priced[i][j], 0) && !math.IsNaN(priced[i][j]):
-				md.cost[k] = sign * priced[i][j]
-			default:
+			} else {
 				md.cost[k] = sign * c
 			}
+		}
+	}
+	return md
+}
+
+// withPriced returns a model sharing base's weights and limits whose costs
+// are the priced ones (in the sense of the assignment; sign -1 when it
+// maximises) on allowed pairs, base's costs where priced is not finite. It
+// reuses buf when it is large enough.
+func withPriced(base *model, priced [][]float64, sign float64, buf []float64) (*model, error) {
+	m, n := base.m, base.n
+	if len(priced) != m {
+		return nil, fmt.Errorf("heuristics: %d priced rows, want %d", len(priced), m)
+	}
+	for i := range priced {
+		if len(priced[i]) != n {
+			return nil, fmt.Errorf("heuristics: priced row %d has %d entries, want %d", i, len(priced[i]), n)
+		}
+	}
+	if cap(buf) < m*n {
+		buf = make([]float64, m*n)
+	}
+	md := &model{m: m, n: n, cost: buf[:m*n], weight: base.weight, limit: base.limit}
+	for i := 0; i < m; i++ {
+		row := priced[i]
+		for j := 0; j < n; j++ {
+			k := j*m + i
+			c, q := base.cost[k], row[j]
+			if c <= maxFinite && !math.IsInf(q, 0) && !math.IsNaN(q) {
+				c = sign * q
+			}
+			md.cost[k] = c
 		}
 	}
 	return md, nil

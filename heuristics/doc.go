@@ -20,6 +20,14 @@
 // regret and, on tight instances, runs a penalised search on capacity excess
 // until the plan fits. [Improve] runs a first-improvement descent with shift
 // and swap moves followed by a tabu search that may cross infeasible regions,
-// with an adaptive penalty on capacity excess. Both are deterministic for a
-// given seed; budgets count moves, never wall-clock time.
+// with an adaptive penalty on capacity excess. A [Searcher] compiles an
+// assignment once for repeated calls (the engine repairs every few rounds);
+// the package-level functions compile on every call.
+//
+// Both scale to about a million pairs: one move looks at a bounded window of
+// items, each with its shifts to every resource and a bounded list of swap
+// partners, so a descent pass costs O(n*m + n*K) and the default budgets
+// grow linearly with n*m. Both check their context about every millisecond.
+// Both are deterministic for a given seed; budgets count moves, never
+// wall-clock time (only a cancelled context stops them earlier).
 package heuristics

@@ -29,7 +29,7 @@ func Example() {
 	relaxed := [][]int{{1, 3}, {0, 2, 4}, {1, 4}}
 	rng := rand.New(rand.NewPCG(1, 2))
 
-	assign, ok := heuristics.Repair(p, relaxed, nil, rng)
+	assign, ok := heuristics.Repair(context.Background(), p, relaxed, nil, rng)
 	v, _ := p.Evaluate(assign)
 	fmt.Println("repaired:", assign, ok, v)
 

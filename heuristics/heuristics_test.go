@@ -146,7 +146,7 @@ func TestRepairAndImproveProperties(t *testing.T) {
 		rng := rand.New(rand.NewPCG(seed, 7))
 		opt, optVal := bruteForce(p)
 
-		asg, ok := Repair(p, rel, priced, rng)
+		asg, ok := Repair(context.Background(), p, rel, priced, rng)
 		if opt == nil && ok {
 			t.Fatalf("Repair returned %v but brute force finds no feasible assignment", asg)
 		}
@@ -214,7 +214,7 @@ func TestImproveReachesOptimum(t *testing.T) {
 			p.Capacity[i] = math.Floor(total / float64(m*m) * (0.8 + 0.4*r.Float64()))
 		}
 		opt, optVal := bruteForce(p)
-		asg, ok := Repair(p, everyoneTakesAll(p), nil, r)
+		asg, ok := Repair(context.Background(), p, everyoneTakesAll(p), nil, r)
 		if opt == nil || !ok {
 			continue
 		}
@@ -239,11 +239,11 @@ func TestRepairTightInfeasible(t *testing.T) {
 		Weight:   [][]float64{{3, 3, 3}, {3, 3, 3}},
 		Capacity: []float64{4, 4},
 	}
-	if asg, ok := Repair(p, everyoneTakesAll(p), nil, rand.New(rand.NewPCG(1, 2))); ok {
+	if asg, ok := Repair(context.Background(), p, everyoneTakesAll(p), nil, rand.New(rand.NewPCG(1, 2))); ok {
 		t.Fatalf("Repair returned %v for an instance with no feasible assignment", asg)
 	}
 	p.Capacity = []float64{6, 3}
-	asg, ok := Repair(p, everyoneTakesAll(p), nil, rand.New(rand.NewPCG(1, 2)))
+	asg, ok := Repair(context.Background(), p, everyoneTakesAll(p), nil, rand.New(rand.NewPCG(1, 2)))
 	if !ok {
 		t.Fatal("Repair failed on a feasible instance")
 	}
@@ -270,7 +270,7 @@ func TestImproveBadInput(t *testing.T) {
 			t.Errorf("Improve(%v) = %v, %v; want a copy of the input and -Inf", in, out, v)
 		}
 	}
-	if _, ok := Repair(&Assignment{Cost: [][]float64{{1}}, Weight: [][]float64{{1, 2}}, Capacity: []float64{1}}, nil, nil, rng); ok {
+	if _, ok := Repair(context.Background(), &Assignment{Cost: [][]float64{{1}}, Weight: [][]float64{{1, 2}}, Capacity: []float64{1}}, nil, nil, rng); ok {
 		t.Error("Repair accepted a ragged instance")
 	}
 }

@@ -10,23 +10,27 @@ import (
 // A move is one step of the tabu search: it evaluates the neighbourhood of a
 // window of at most 64 items (each item's shift to every resource and its
 // swaps with at most 64 partner items on its cheapest other resources) plus
-// at most 8 two-link ejection chains of 8 items each, and makes the best
+// at most 6 two-link ejection chains of 4 items each, and makes the best
 // admissible one. A move therefore costs O(m + K) per window item, whatever
 // the number of items n, and the default budget, which is proportional to n,
 // makes the run time of Improve grow about linearly with n*m.
 type ImproveSettings struct {
 	// Moves is the number of tabu-search moves after the descent; 0 means
-	// 20 per item plus 2000, a negative value skips the tabu search.
+	// 10 per item plus 2000, a negative value skips the tabu search.
 	Moves int
 	// Stall is the number of moves without a new best assignment after
 	// which the search goes back to the best one and perturbs it; 0 means
 	// 3 per item plus 100.
 	Stall int
+	// PairNodes bounds each two-resource branch and bound of the final
+	// polish; 0 means 5000, a negative value skips that polish (a light
+	// repair for frequent calls).
+	PairNodes int
 }
 
 func (st ImproveSettings) withDefaults(n int) ImproveSettings {
 	if st.Moves == 0 {
-		st.Moves = 20*n + 2000
+		st.Moves = 10*n + 2000
 	}
 	if st.Stall <= 0 {
 		st.Stall = 3*n + 100
@@ -72,7 +76,7 @@ func (sr *Searcher) Improve(ctx context.Context, assign []int, s ImproveSettings
 		return in, sr.p.worst()
 	}
 	for j, i := range assign {
-		if i < 0 || i >= md.m || md.cost[i*md.n+j] > maxFinite {
+		if i < 0 || i >= md.m || md.cost[j*md.m+i] > maxFinite {
 			return in, sr.p.worst()
 		}
 	}
@@ -95,7 +99,11 @@ func (sr *Searcher) Improve(ctx context.Context, assign []int, s ImproveSettings
 	copy(srch.asg, srch.best)
 	srch.recompute()
 	srch.descend(1 << 30)
-	if !srch.cancelled() && srch.pairOpt(pairNodes) {
+	nodes := s.PairNodes
+	if nodes == 0 {
+		nodes = pairNodes
+	}
+	if nodes > 0 && !srch.cancelled() && srch.pairOpt(nodes) {
 		srch.descend(1 << 30)
 	}
 	out := append([]int(nil), srch.best...)
@@ -120,7 +128,7 @@ func (s *search) tabuSearch(moves, stall int, untilFeasible bool) {
 		if !s.step() {
 			// every move of the window is tabu: with a full window,
 			// forget the tabu list; otherwise the next window differs
-			if s.n <= window {
+			if s.n <= fullWindow {
 				for k := range s.tabu {
 					s.tabu[k] = 0
 				}
@@ -166,7 +174,7 @@ func (s *search) restart() {
 	for r := 0; r < kicks; r++ {
 		j := s.rng.IntN(s.n)
 		i := s.rng.IntN(s.m)
-		if i != s.asg[j] && s.model.cost[i*s.n+j] <= maxFinite {
+		if i != s.asg[j] && s.model.cost[j*s.m+i] <= maxFinite {
 			s.shift(j, i)
 		}
 	}

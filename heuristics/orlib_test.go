@@ -5,6 +5,7 @@ import (
 	"context"
 	"encoding/csv"
 	"fmt"
+	"io"
 	"math"
 	"math/rand/v2"
 	"os"
@@ -47,7 +48,28 @@ func readOrlib(path string, maximise bool) ([]*Assignment, error) {
 		return nil, err
 	}
 	defer f.Close()
-	sc := bufio.NewScanner(f)
+	return readBlocks(f, path, maximise, -1)
+}
+
+// readYagiura reads one of the single-instance files of yagiura/ (the same
+// block without the leading count, SOURCES.md section 2.2).
+func readYagiura(path string, maximise bool) (*Assignment, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, err
+	}
+	defer f.Close()
+	probs, err := readBlocks(f, path, maximise, 1)
+	if err != nil {
+		return nil, err
+	}
+	return probs[0], nil
+}
+
+// readBlocks reads count instance blocks from r; count < 0 means the count
+// is the first token.
+func readBlocks(r io.Reader, path string, maximise bool, count int) ([]*Assignment, error) {
+	sc := bufio.NewScanner(r)
 	sc.Split(bufio.ScanWords)
 	tok := 0
 	next := func() (int, error) {
@@ -75,9 +97,12 @@ func readOrlib(path string, maximise bool) ([]*Assignment, error) {
 		}
 		return out, nil
 	}
-	count, err := next()
-	if err != nil {
-		return nil, err
+	if count < 0 {
+		c, err := next()
+		if err != nil {
+			return nil, err
+		}
+		count = c
 	}
 	var probs []*Assignment
 	for q := 0; q < count; q++ {
@@ -168,7 +193,7 @@ func everyoneTakesAll(p *Assignment) [][]int {
 func solveFromScratch(tb testing.TB, p *Assignment, s ImproveSettings, seed uint64) ([]int, float64) {
 	tb.Helper()
 	rng := rand.New(rand.NewPCG(seed, 1))
-	asg, ok := Repair(p, everyoneTakesAll(p), nil, rng)
+	asg, ok := Repair(context.Background(), p, everyoneTakesAll(p), nil, rng)
 	if !ok {
 		tb.Fatalf("Repair found no feasible assignment")
 	}
@@ -287,7 +312,7 @@ func TestRepairTight(t *testing.T) {
 		for q, p := range probs {
 			m, _ := p.Size()
 			for name, rel := range map[string][][]int{"all": everyoneTakesAll(p), "empty": make([][]int, m)} {
-				asg, ok := Repair(p, rel, nil, rand.New(rand.NewPCG(uint64(q), 3)))
+				asg, ok := Repair(context.Background(), p, rel, nil, rand.New(rand.NewPCG(uint64(q), 3)))
 				if _, feas := p.Evaluate(asg); !ok || !feas {
 					t.Errorf("gap%s #%d, relaxation %s: Repair failed (ok %v)", typ, q+1, name, ok)
 				}

@@ -1,19 +1,29 @@
 package heuristics
 
 import (
+	"cmp"
 	"math"
-	"sort"
+	"slices"
 )
 
 // pairOpt re-solves, for every pair of resources, the assignment of the items
 // on those two resources by depth-first branch and bound (each search limited
-// to nodeLimit nodes), keeping feasibility. It works on the current
+// to nodeLimit nodes, less with many resources), keeping feasibility. It works on the current
 // assignment, which must be feasible, and returns whether it improved it.
+// It stops early when the context is cancelled.
 func (s *search) pairOpt(nodeLimit int) bool {
 	improved := false
+	// with many resources, share a total of pairTotal nodes among the pairs
+	if pairs := s.m * (s.m - 1) / 2; pairs > 0 && pairs*nodeLimit > pairTotal {
+		nodeLimit = max(pairTotal/pairs, 200)
+	}
+	ps := &pairSearch{s: s, cap: nodeLimit}
 	for a := 0; a < s.m; a++ {
 		for b := a + 1; b < s.m; b++ {
-			if s.reoptimise(a, b, nodeLimit) {
+			if s.cancelled() {
+				break
+			}
+			if ps.reoptimise(a, b) {
 				improved = true
 			}
 		}
@@ -25,36 +35,42 @@ func (s *search) pairOpt(nodeLimit int) bool {
 	return improved
 }
 
+// pairTotal bounds the nodes of one pairOpt over all pairs of resources
+// (except that every pair may use 200), so that its cost does not grow with
+// the square of the number of resources.
+const pairTotal = 1000000
+
 type pairSearch struct {
-	s          *search
-	a, b       int
-	items      []int
-	restMin    []float64 // least cost of items[q:]
-	choice     []int     // current partial choice: 0 = a, 1 = b
-	best       []int
-	bestCost   float64
-	nodes, cap int
+	s        *search
+	a, b     int
+	items    []int
+	restMin  []float64 // least cost of items[q:]
+	choice   []int     // current partial choice: 0 = a, 1 = b
+	best     []int
+	bestCost float64
+	nodes    int
+	cap      int
+	stopped  bool
 }
 
-func (s *search) reoptimise(a, b, nodeLimit int) bool {
-	n := s.n
-	var items []int
-	for j, i := range s.asg {
-		if i == a || i == b {
-			items = append(items, j)
-		}
-	}
+// reoptimise re-solves the items on resources a and b. The member lists of
+// a and b must be current; it keeps them current.
+func (ps *pairSearch) reoptimise(a, b int) bool {
+	s := ps.s
+	m := s.m
+	items := append(append(ps.items[:0], s.members[a]...), s.members[b]...)
+	ps.items = items
 	if len(items) < 2 {
 		return false
 	}
 	// most decisive items first
-	sort.SliceStable(items, func(x, y int) bool {
-		jx, jy := items[x], items[y]
-		return math.Abs(s.model.cost[a*n+jx]-s.model.cost[b*n+jx]) > math.Abs(s.model.cost[a*n+jy]-s.model.cost[b*n+jy])
+	slices.SortStableFunc(items, func(jx, jy int) int {
+		return cmp.Compare(math.Abs(s.model.cost[jy*m+a]-s.model.cost[jy*m+b]), math.Abs(s.model.cost[jx*m+a]-s.model.cost[jx*m+b]))
 	})
-	ps := &pairSearch{s: s, a: a, b: b, items: items, cap: nodeLimit,
-		restMin: make([]float64, len(items)+1),
-		choice:  make([]int, len(items)), best: make([]int, len(items))}
+	ps.a, ps.b, ps.nodes, ps.stopped = a, b, 0, false
+	ps.restMin = slices.Grow(ps.restMin[:0], len(items)+1)[:len(items)+1]
+	ps.choice = slices.Grow(ps.choice[:0], len(items))[:len(items)]
+	ps.best = slices.Grow(ps.best[:0], len(items))[:len(items)]
 	cur := 0.0
 	for q, j := range items {
 		side := 0
@@ -62,11 +78,12 @@ func (s *search) reoptimise(a, b, nodeLimit int) bool {
 			side = 1
 		}
 		ps.best[q] = side
-		cur += s.model.cost[s.asg[j]*n+j]
+		cur += s.model.cost[j*m+s.asg[j]]
 	}
+	ps.restMin[len(items)] = 0
 	for q := len(items) - 1; q >= 0; q-- {
 		j := items[q]
-		ps.restMin[q] = ps.restMin[q+1] + math.Min(s.model.cost[a*n+j], s.model.cost[b*n+j])
+		ps.restMin[q] = ps.restMin[q+1] + math.Min(s.model.cost[j*m+a], s.model.cost[j*m+b])
 	}
 	ps.bestCost = cur - costEps(cur)
 	start := ps.bestCost
@@ -74,19 +91,26 @@ func (s *search) reoptimise(a, b, nodeLimit int) bool {
 	if !(ps.bestCost < start) {
 		return false
 	}
+	s.members[a], s.members[b] = s.members[a][:0], s.members[b][:0]
 	for q, j := range items {
 		i := a
 		if ps.best[q] == 1 {
 			i = b
 		}
 		s.asg[j] = i
+		s.pos[j] = len(s.members[i])
+		s.members[i] = append(s.members[i], j)
 	}
 	return true
 }
 
 func (ps *pairSearch) dfs(q int, cost, la, lb float64) {
+	m := ps.s.m
 	ps.nodes++
-	if cost+ps.restMin[q] >= ps.bestCost || ps.nodes > ps.cap {
+	if ps.nodes&1023 == 0 && ps.s.cancelled() {
+		ps.stopped = true
+	}
+	if ps.stopped || cost+ps.restMin[q] >= ps.bestCost || ps.nodes > ps.cap {
 		return
 	}
 	if q == len(ps.items) {
@@ -94,8 +118,8 @@ func (ps *pairSearch) dfs(q int, cost, la, lb float64) {
 		copy(ps.best, ps.choice)
 		return
 	}
-	s, n, j := ps.s, ps.s.n, ps.items[q]
-	ka, kb := ps.a*n+j, ps.b*n+j
+	s, j := ps.s, ps.items[q]
+	ka, kb := j*m+ps.a, j*m+ps.b
 	first := 0
 	if s.model.cost[kb] < s.model.cost[ka] {
 		first = 1

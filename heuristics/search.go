@@ -11,13 +11,16 @@ import (
 // most swapResources*swapPartners items (O(K)). Ejection chains start from at
 // most ejectStarts overloading shifts and look at ejectPartners items of the
 // overloaded resource each. So a move costs O(window*(m+K)), independent of
-// the number of items once it exceeds window.
+// the number of items. Instances of at most fullWindow items keep the whole
+// neighbourhood (every item, every swap partner, every ejected item), which
+// is what their quality needs and costs a bounded amount.
 const (
-	window        = 64
-	swapResources = 4
-	swapPartners  = 16
-	ejectStarts   = 8
-	ejectPartners = 8
+	window        = 32
+	fullWindow    = 200 // up to this many items, a move looks at all of them
+	swapResources = 3
+	swapPartners  = 8
+	ejectStarts   = 6
+	ejectPartners = 4
 	// ctxEvery is how many moves (or items in a descent pass) run between
 	// two looks at the context; a move costs a few microseconds.
 	ctxEvery = 32
@@ -38,7 +41,7 @@ type search struct {
 	over int     // number of resources above their limit
 
 	alpha []float64 // [i] weight of resource i's capacity excess in the penalised objective
-	tabu  []int32   // [i*n+j]: moving item j onto resource i is tabu before this iteration
+	tabu  []int32   // [j*m+i]: moving item j onto resource i is tabu before this iteration
 	iter  int32
 
 	members [][]int // [i] items on resource i
@@ -111,7 +114,7 @@ func (s *search) recompute() {
 	}
 	s.cost = 0
 	for j, i := range s.asg {
-		s.load[i] += s.weight[i*s.n+j]
+		s.load[i] += s.weight[j*s.m+i]
 		s.cost += s.cost1(i, j)
 		s.pos[j] = len(s.members[i])
 		s.members[i] = append(s.members[i], j)
@@ -124,7 +127,7 @@ func (s *search) recompute() {
 	}
 }
 
-func (s *search) cost1(i, j int) float64 { return s.model.cost[i*s.n+j] }
+func (s *search) cost1(i, j int) float64 { return s.model.cost[j*s.m+i] }
 
 // initialAlpha scales the excess penalty so that one unit of excess costs
 // about as much as the spread of costs over the mean weight.
@@ -174,8 +177,8 @@ func (s *search) shift(j, i int) {
 	if a == i {
 		return
 	}
-	s.setLoad(a, s.load[a]-s.weight[a*s.n+j])
-	s.setLoad(i, s.load[i]+s.weight[i*s.n+j])
+	s.setLoad(a, s.load[a]-s.weight[j*s.m+a])
+	s.setLoad(i, s.load[i]+s.weight[j*s.m+i])
 	s.cost += s.cost1(i, j) - s.cost1(a, j)
 	s.asg[j] = i
 	// member lists: swap j out of a, append it to i
@@ -187,7 +190,7 @@ func (s *search) shift(j, i int) {
 	s.members[a] = ma[:len(ma)-1]
 	s.pos[j] = len(s.members[i])
 	s.members[i] = append(s.members[i], j)
-	s.tabu[a*s.n+j] = s.iter + int32(s.tenure())
+	s.tabu[j*s.m+a] = s.iter + int32(s.tenure())
 }
 
 func (s *search) setLoad(i int, l float64) {
@@ -213,12 +216,26 @@ func (s *search) tenure() int {
 // partners calls f for the swap partners of item j (on resource a): the
 // members of the swapResources resources with the least cost for j, all of
 // them when a resource holds at most swapPartners items, else swapPartners
-// consecutive ones from a random offset. It is O(m + K).
+// consecutive ones from a random offset. It is O(m + K). On instances of at
+// most fullWindow items every item on another allowed resource is a partner.
 func (s *search) partners(j, a int, f func(k, b int)) {
 	n := s.n
+	m := s.m
+	if n <= fullWindow {
+		// small instance: the whole swap neighbourhood
+		for b := 0; b < s.m; b++ {
+			if b == a || !(s.model.cost[j*m+b] <= maxFinite) {
+				continue
+			}
+			for _, k := range s.members[b] {
+				f(k, b)
+			}
+		}
+		return
+	}
 	s.topRes, s.topCost = s.topRes[:0], s.topCost[:0]
 	for b := 0; b < s.m; b++ {
-		c := s.model.cost[b*n+j]
+		c := s.model.cost[j*m+b]
 		if b == a || !(c <= maxFinite) || len(s.members[b]) == 0 {
 			continue
 		}
@@ -257,6 +274,7 @@ func (s *search) partners(j, a int, f func(k, b int)) {
 // returns the moves made. One pass costs O(n*m + n*K).
 func (s *search) descend(budget int) int {
 	n := s.n
+	m := s.m
 	moves := 0
 	for improved := true; improved && moves < budget; {
 		improved = false
@@ -269,7 +287,7 @@ func (s *search) descend(budget int) int {
 			a := s.asg[j]
 			ca := s.cost1(a, j)
 			for i := 0; i < s.m; i++ {
-				k := i*n + j
+				k := j*m + i
 				if i == a || s.load[i]+s.weight[k] > s.limit[i] {
 					continue
 				}
@@ -283,12 +301,12 @@ func (s *search) descend(budget int) int {
 			// swaps of j with partners on other resources
 			bj, bk, bb, bd := -1, -1, -1, -costEps(s.cost)
 			s.partners(j, a, func(k, b int) {
-				d := s.model.cost[a*n+k] + s.model.cost[b*n+j] - ca - s.model.cost[b*n+k]
+				d := s.model.cost[k*m+a] + s.model.cost[j*m+b] - ca - s.model.cost[k*m+b]
 				if !(d < bd) {
 					return
 				}
-				la := s.load[a] - s.weight[a*n+j] + s.weight[a*n+k]
-				lb := s.load[b] - s.weight[b*n+k] + s.weight[b*n+j]
+				la := s.load[a] - s.weight[j*m+a] + s.weight[k*m+a]
+				lb := s.load[b] - s.weight[k*m+b] + s.weight[j*m+b]
 				if la > s.limit[a] || lb > s.limit[b] {
 					return
 				}
@@ -371,7 +389,7 @@ func (p *pool) keep(j, i int, val float64) {
 // for half of the window random items of over-capacity resources.
 func (s *search) fillWindow() {
 	s.win = s.win[:0]
-	if s.n <= window {
+	if s.n <= fullWindow {
 		s.win = append(s.win, s.order...)
 		return
 	}
@@ -402,7 +420,7 @@ func (s *search) fillWindow() {
 // feasible assignment better than the best one. It returns false when no
 // move is admissible. Its cost is O(window*(m+K)).
 func (s *search) step() bool {
-	n, m := s.n, s.m
+	m := s.m
 	cost, weight, limit, load, asg := s.model.cost, s.weight, s.limit, s.load, s.asg
 	alpha, exc := s.alpha, s.exc
 	bestLimit := s.bestCost - costEps(s.bestCost)
@@ -417,7 +435,7 @@ func (s *search) step() bool {
 
 	for _, j := range s.win {
 		a := asg[j]
-		ka := a*n + j
+		ka := j*m + a
 		ca, wa := cost[ka], weight[ka]
 		la := load[a]
 		exA := alpha[a]*s.excess(a, la-wa) - exc[a]
@@ -425,7 +443,7 @@ func (s *search) step() bool {
 		aOverAfter := la-wa > limit[a]
 		// shifts
 		for i := 0; i < m; i++ {
-			k := i*n + j
+			k := j*m + i
 			c := cost[k]
 			if i == a || math.IsInf(c, 1) {
 				continue
@@ -464,14 +482,14 @@ func (s *search) step() bool {
 		// swaps of j (on a) with k (on b)
 		waj := wa
 		s.partners(j, a, func(k, b int) {
-			rowA, rowB := a*n, b*n
-			dc := cost[rowB+j] - ca + cost[rowA+k] - cost[rowB+k]
+			kbj, kak, kbk := j*m+b, k*m+a, k*m+b
+			dc := cost[kbj] - ca + cost[kak] - cost[kbk]
 			if dc-exc[a]-exc[b] > mv.val || !(dc <= maxFinite) {
 				return
 			}
 			lb := load[b]
-			nla := la - waj + weight[rowA+k]
-			nlb := lb - weight[rowB+k] + weight[rowB+j]
+			nla := la - waj + weight[kak]
+			nlb := lb - weight[kbk] + weight[kbj]
 			val := dc - exc[a] - exc[b]
 			if nla > limit[a] {
 				val += alpha[a] * (nla - limit[a])
@@ -482,7 +500,7 @@ func (s *search) step() bool {
 			if val > mv.val {
 				return
 			}
-			if s.tabu[rowB+j] > it || s.tabu[rowA+k] > it {
+			if s.tabu[kbj] > it || s.tabu[kak] > it {
 				if nla > limit[a] || nlb > limit[b] || !(s.cost+dc < bestLimit) {
 					return
 				}
@@ -518,13 +536,13 @@ func (s *search) step() bool {
 // b, which it overloads, and an item k leaves b for a third resource c. At
 // most ejectPartners items k of b are tried per candidate.
 func (s *search) ejections(mv *move) {
-	n, m := s.n, s.m
+	m := s.m
 	cost, weight, limit, load, alpha := s.model.cost, s.weight, s.limit, s.load, s.alpha
 	it := s.iter
 	for _, cd := range s.cands.items {
 		j, b := cd.j, cd.i
 		a := s.asg[j]
-		kaj, kbj := a*n+j, b*n+j
+		kaj, kbj := j*m+a, j*m+b
 		la, lb := load[a], load[b]
 		nla := la - weight[kaj]
 		pa := alpha[a] * (s.excess(a, nla) - s.excess(a, la))
@@ -533,12 +551,12 @@ func (s *search) ejections(mv *move) {
 		exB0 := s.excess(b, lb)
 		mb := s.members[b]
 		cnt, off := len(mb), 0
-		if cnt > ejectPartners {
+		if cnt > ejectPartners && s.n > fullWindow {
 			cnt, off = ejectPartners, s.rng.IntN(len(mb))
 		}
 		for q := 0; q < cnt; q++ {
 			k := mb[(off+q)%len(mb)]
-			kbk := b*n + k
+			kbk := k*m + b
 			nlb := lb1 - weight[kbk]
 			pb := alpha[b] * (s.excess(b, nlb) - exB0)
 			base := dc0 - cost[kbk] + pa + pb
@@ -546,7 +564,7 @@ func (s *search) ejections(mv *move) {
 				if c == a || c == b {
 					continue
 				}
-				kck := c*n + k
+				kck := k*m + c
 				cc := cost[kck]
 				if math.IsInf(cc, 1) || s.tabu[kck] > it {
 					continue

@@ -61,7 +61,7 @@ func demoInstance() *gap.Instance {
 		for j := 0; j < demoOrders; j++ {
 			sum += in.Use[i][j]
 		}
-		in.Capacity[i] = int64(math.Round(0.85 * float64(sum) / float64(m)))
+		in.Capacity[i] = int64(math.Round(1.08 * float64(sum) / float64(m)))
 	}
 	return in
 }

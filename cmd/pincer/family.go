@@ -65,7 +65,7 @@ type verdict struct {
 }
 
 func families() []family {
-	return []family{gapFamily()}
+	return []family{gapFamily(), cflpORLibFamily(), cflpCSVFamily()}
 }
 
 func findFamily(format string) (family, error) {

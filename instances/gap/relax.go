@@ -51,10 +51,10 @@ type Options struct {
 	Maximise   bool
 	Relaxation Relaxation
 	// Improve bounds the local search after each repair; the zero value
-	// means the heuristics package defaults.
+	// means a light polish proportional to the number of jobs.
 	Improve heuristics.ImproveSettings
 	// FinalImprove bounds the local search of the last repair; the zero
-	// value means ten times the default move budget.
+	// value means a thorough search (which a time limit may cut short).
 	FinalImprove heuristics.ImproveSettings
 }
 
@@ -188,11 +188,15 @@ type jobBlock struct {
 }
 
 // repairer turns block answers into an assignment with the shared
-// assignment heuristics.
+// assignment heuristics. It is called from one goroutine at a time.
 type repairer struct {
-	in    *Instance
-	opt   Options
-	model *heuristics.Assignment
+	in       *Instance
+	opt      Options
+	model    *heuristics.Assignment
+	searcher *heuristics.Searcher
+	priced   [][]float64
+	relaxed  [][]int
+	options  [][]int // choice relaxation: agents of each job's options
 }
 
 func newRepairer(in *Instance, opt Options) *repairer {
@@ -214,12 +218,48 @@ func newRepairer(in *Instance, opt Options) *repairer {
 	return &repairer{in: in, opt: opt, model: m}
 }
 
+// improveSettings gives the move budget of a repair: a light polish in
+// rounds, a thorough search at the end (which the time limit may cut).
+// The budgets count moves, so runs are reproducible.
+func (r *repairer) improveSettings(final bool) heuristics.ImproveSettings {
+	n := r.in.Jobs
+	if final {
+		if r.opt.FinalImprove != (heuristics.ImproveSettings{}) {
+			return r.opt.FinalImprove
+		}
+		return heuristics.ImproveSettings{Moves: 200*n + 20000}
+	}
+	if r.opt.Improve != (heuristics.ImproveSettings{}) {
+		return r.opt.Improve
+	}
+	// In rounds only the descent runs (no tabu moves): repairs are
+	// frequent, and the tabu search pays off once, on the best plan.
+	return heuristics.ImproveSettings{Moves: -1, PairNodes: -1}
+}
+
 func (r *repairer) Repair(ctx context.Context, rin *decomp.RepairInput) (*decomp.Plan, error) {
 	in := r.in
-	relaxed := make([][]int, in.Agents)
-	priced := make([][]float64, in.Agents)
-	for i := range priced {
-		priced[i] = make([]float64, in.Jobs)
+	if r.searcher == nil {
+		s, err := heuristics.NewSearcher(r.model)
+		if err != nil {
+			return nil, err
+		}
+		r.searcher = s
+		r.priced = make([][]float64, in.Agents)
+		for i := range r.priced {
+			r.priced[i] = make([]float64, in.Jobs)
+		}
+		r.relaxed = make([][]int, in.Agents)
+		if r.opt.Relaxation == ChoiceRelaxation {
+			r.options = make([][]int, in.Jobs)
+			for j := range r.options {
+				r.options[j] = jobAgents(in, j)
+			}
+		}
+	}
+	relaxed, priced := r.relaxed, r.priced
+	for i := range relaxed {
+		relaxed[i] = relaxed[i][:0]
 	}
 	switch r.opt.Relaxation {
 	case KnapsackRelaxation:
@@ -233,8 +273,7 @@ func (r *repairer) Repair(ctx context.Context, rin *decomp.RepairInput) (*decomp
 		}
 	default:
 		for j := range rin.Answers {
-			jb := jobAgents(in, j)
-			i := jb[rin.Answers[j].Primal[0].Index]
+			i := r.options[j][rin.Answers[j].Primal[0].Index]
 			relaxed[i] = append(relaxed[i], j)
 		}
 		for i := range priced {
@@ -244,25 +283,18 @@ func (r *repairer) Repair(ctx context.Context, rin *decomp.RepairInput) (*decomp
 		}
 	}
 	rng := rand.New(rand.NewPCG(rin.Seed, 0x6a6f62))
-	assign, ok := heuristics.Repair(r.model, relaxed, priced, rng)
-	if !ok {
-		if rin.Best == nil {
+	var assign []int
+	if rin.Final && rin.Best != nil {
+		// The last repair polishes the best plan found so far.
+		assign = append([]int(nil), rin.Best.Detail.([]int)...)
+	} else {
+		var ok bool
+		assign, ok = r.searcher.Repair(ctx, relaxed, priced, rng)
+		if !ok {
 			return nil, nil
 		}
-		assign = append([]int(nil), rin.Best.Detail.([]int)...)
 	}
-	settings := r.opt.Improve
-	if rin.Final {
-		settings = r.opt.FinalImprove
-		if settings == (heuristics.ImproveSettings{}) {
-			settings.Moves = 10 * (40*in.Jobs + 2000)
-		}
-		if rin.Best != nil {
-			// The last repair polishes the best plan found so far.
-			assign = append(assign[:0], rin.Best.Detail.([]int)...)
-		}
-	}
-	assign, _ = heuristics.Improve(ctx, r.model, assign, settings, rng)
+	assign, _ = r.searcher.Improve(ctx, assign, r.improveSettings(rin.Final), rng)
 	return r.plan(assign), nil
 }
 
