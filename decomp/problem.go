@@ -112,6 +112,11 @@ type Plan struct {
 	// Detail is the family's own representation of the plan; the engine
 	// passes it through untouched.
 	Detail any
+	// Proved states that the repairer proved this plan optimal by an exact
+	// search of its own (for example a branch and bound over a few
+	// decisions, using the relaxation's bound). The engine then takes the
+	// plan's value as the bound and stops.
+	Proved bool
 }
 
 // RepairInput is what a repairer sees in a round.
@@ -146,6 +151,11 @@ type Problem struct {
 	// value, so the bound may be rounded (up when minimising, down when
 	// maximising) when judging whether a plan is proved optimal.
 	IntegralObjective bool
+	// PlanLimit, when HasPlanLimit is set, is a value that every feasible
+	// plan is at least as good as (for example the sum of every block's
+	// worst cost). A bound beyond it proves that no feasible plan exists.
+	PlanLimit    float64
+	HasPlanLimit bool
 	// Repair is optional; without it the run gives a bound only.
 	Repair Repairer
 }

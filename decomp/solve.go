@@ -15,8 +15,8 @@ type Status int8
 const (
 	// GapReached: the relative gap fell to Settings.Gap or below.
 	GapReached Status = iota + 1
-	// IntegerClosed: the plan's value meets the rounded bound of an
-	// integral objective, so the plan is optimal.
+	// IntegerClosed: the plan's value meets the bound (rounded, for an
+	// integral objective), so the plan is optimal.
 	IntegerClosed
 	// PricesSettled: the projected subgradient vanished, so the current
 	// prices are optimal for the dual and the bound cannot improve.
@@ -29,9 +29,15 @@ const (
 	Stalled
 	// Interrupted: the context was cancelled.
 	Interrupted
+	// ProvedInfeasible: the bound passed Problem.PlanLimit, so no feasible
+	// plan exists.
+	ProvedInfeasible
+	// SearchClosed: the repairer proved its plan optimal by an exact search
+	// (Plan.Proved).
+	SearchClosed
 )
 
-var statusNames = [...]string{"", "gap-reached", "integer-closed", "prices-settled", "round-limit", "time-limit", "stalled", "interrupted"}
+var statusNames = [...]string{"", "gap-reached", "integer-closed", "prices-settled", "round-limit", "time-limit", "stalled", "interrupted", "proved-infeasible", "search-closed"}
 
 // String returns the stop reason as used in reports.
 func (s Status) String() string {
@@ -185,6 +191,7 @@ type runner struct {
 	bound              float64
 	hasBound           bool
 	plan               *Plan
+	planProved         bool
 	history            []RoundRecord
 }
 
@@ -265,6 +272,8 @@ func (r *runner) loop(parent context.Context) (*Result, error) {
 		}
 		rec.Norm = norm
 		switch {
+		case p.HasPlanLimit && p.Sense.Better(p.PlanLimit, r.bound) && r.plan == nil:
+			status = ProvedInfeasible
 		case r.closed():
 			status = r.closedStatus()
 		case norm == 0:
@@ -288,7 +297,7 @@ func (r *runner) loop(parent context.Context) (*Result, error) {
 	}
 	// A last repair from the latest answers. After an interruption it gets
 	// a short detached deadline so that a plan is not lost.
-	if round > 0 && status != IntegerClosed {
+	if round > 0 && status != IntegerClosed && status != ProvedInfeasible && status != SearchClosed {
 		rctx := hard
 		if parent.Err() != nil {
 			var cancel context.CancelFunc
@@ -384,7 +393,14 @@ func (r *runner) repair(ctx context.Context, round int, final bool) (bool, error
 	if plan == nil || math.IsNaN(plan.Value) {
 		return false, nil
 	}
-	if r.plan == nil || r.p.Sense.Better(plan.Value, r.plan.Value) {
+	better := r.plan == nil || r.p.Sense.Better(plan.Value, r.plan.Value)
+	if plan.Proved && (better || math.Abs(plan.Value-r.plan.Value) <= 1e-9*math.Max(1, math.Abs(plan.Value))) {
+		// The optimum's value is itself a valid bound.
+		r.plan, r.planProved = plan, true
+		r.bound, r.hasBound = plan.Value, true
+		return true, nil
+	}
+	if better {
 		r.plan = plan
 		return true, nil
 	}
@@ -413,6 +429,9 @@ func (r *runner) roundedBound() float64 {
 }
 
 func (r *runner) proved() bool {
+	if r.planProved {
+		return true
+	}
 	if r.plan == nil || !r.hasBound {
 		return false
 	}
@@ -435,6 +454,9 @@ func (r *runner) closed() bool {
 }
 
 func (r *runner) closedStatus() Status {
+	if r.planProved {
+		return SearchClosed
+	}
 	if r.proved() {
 		return IntegerClosed
 	}

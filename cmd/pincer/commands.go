@@ -143,6 +143,6 @@ func newGenCmd() *cobra.Command {
 	g.Flags().IntVar(&jobs, "jobs", 100, "number of jobs")
 	g.Flags().Uint64Var(&seed, "seed", 1, "random seed")
 	g.Flags().StringVarP(&out, "output", "o", "", "file to write (default stdout)")
-	gen.AddCommand(g)
+	gen.AddCommand(g, newGenCflpCmd())
 	return gen
 }

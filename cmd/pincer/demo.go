@@ -68,13 +68,26 @@ func demoInstance() *gap.Instance {
 
 func newDemoCmd() *cobra.Command {
 	var f runFlags
+	var scenario string
 	cmd := &cobra.Command{
-		Use:   "demo",
+		Use:   "demo [--scenario orders|sites]",
 		Short: "Solve an invented scenario and explain its shadow prices",
-		Args:  cobra.NoArgs,
+		Long: `demo solves one of two invented scenarios and explains its shadow prices:
+  orders  Brackenridge Joinery places 600 customer orders on 20 workshops with
+          limited hours (generalized assignment; the default)
+  sites   a wholesaler chooses which warehouses to run and which shops each
+          serves (capacitated facility location)`,
+		Args: cobra.NoArgs,
 		RunE: func(cmd *cobra.Command, args []string) error {
 			if err := f.check(); err != nil {
 				return err
+			}
+			switch scenario {
+			case "sites":
+				return runSitesDemo(cmd.Context(), cmd.OutOrStdout(), cmd.ErrOrStderr(), &f)
+			case "orders", "":
+			default:
+				return badInput(fmt.Errorf("unknown --scenario %q (want orders or sites)", scenario))
 			}
 			in := demoInstance()
 			names := make([]string, len(demoPlants))
@@ -97,6 +110,8 @@ func newDemoCmd() *cobra.Command {
 		},
 	}
 	f.register(cmd, false)
+	cmd.Flags().StringVar(&scenario, "scenario", "orders", "which scenario: orders or sites")
+	cmd.Flags().BoolVar(&f.model.singleSource, "single-source", false, "sites scenario: each shop served by one warehouse")
 	cmd.Flags().Lookup("time").DefValue = "5s"
 	_ = cmd.Flags().Set("time", "5s")
 	return cmd

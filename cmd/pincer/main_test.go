@@ -91,7 +91,6 @@ func TestVerifyRejectsInfeasiblePlan(t *testing.T) {
 	}
 }
 
-
 func TestBadInputExitsTwo(t *testing.T) {
 	dir := t.TempDir()
 	cases := map[string]string{
@@ -156,7 +155,7 @@ func TestSameSeedSameReportAnyWorkers(t *testing.T) {
 	for _, w := range []string{"1", "2", "8"} {
 		rep := filepath.Join(dir, "run"+w+".json")
 		code, _, errs := runCLI(t, context.Background(), "solve", "--format", "gap-orlib", "--quiet", "--time", "0",
-			"--rounds", "60", "--gap", "0", "--seed", "9", "--workers", w, "--report", rep, testdata("gap-d-10x200.txt"))
+			"--rounds", "40", "--gap", "0", "--seed", "9", "--workers", w, "--report", rep, testdata("gap-d-10x200.txt"))
 		if code != exitOK && code != exitNoPlan {
 			t.Fatalf("workers %s: exit %d: %s", w, code, errs)
 		}
@@ -175,10 +174,13 @@ func TestSameSeedSameReportAnyWorkers(t *testing.T) {
 func TestInterruptWritesReportAndPlan(t *testing.T) {
 	dir := t.TempDir()
 	rep, plan := filepath.Join(dir, "run.json"), filepath.Join(dir, "plan.csv")
-	ctx, cancel := context.WithTimeout(context.Background(), 1500*time.Millisecond)
+	// Cancel like Ctrl-C does (a deadline would count as a time limit).
+	ctx, cancel := context.WithCancel(context.Background())
 	defer cancel()
+	timer := time.AfterFunc(1500*time.Millisecond, cancel)
+	defer timer.Stop()
 	code, _, errs := runCLI(t, ctx, "solve", "--format", "gap-orlib", "--quiet", "--time", "60s", "--gap", "0",
-		"--report", rep, "--plan", plan, testdata("gap-d-10x200.txt"))
+		"--stall", "1000000000", "--report", rep, "--plan", plan, testdata("gap-d-10x200.txt"))
 	if code != exitInterrupted {
 		t.Fatalf("exit %d, want %d: %s", code, exitInterrupted, errs)
 	}

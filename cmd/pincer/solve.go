@@ -32,6 +32,7 @@ type runFlags struct {
 	logFormat   string
 	top         int
 	repairEvery int
+	stall       int
 }
 
 func (f *runFlags) register(cmd *cobra.Command, withFormat bool) {
@@ -54,6 +55,7 @@ func (f *runFlags) register(cmd *cobra.Command, withFormat bool) {
 	fl.StringVar(&f.logFormat, "log-format", "text", "progress log format when stderr is not a terminal: text or json")
 	fl.IntVar(&f.top, "top", 5, "shared resources listed in the summary")
 	fl.IntVar(&f.repairEvery, "repair-every", 0, "repair every this many rounds (0: engine default)")
+	fl.IntVar(&f.stall, "stall", 0, "stop after this many rounds without a better bound or plan (0: engine default, 300)")
 }
 
 func (f *runFlags) check() error {
@@ -103,7 +105,7 @@ func solveModel(ctx context.Context, stdout, stderr io.Writer, f *runFlags, file
 		return nil, badInput(err)
 	}
 	settings := decomp.Settings{
-		Gap: f.gap, Time: f.time, Rounds: f.rounds, Seed: f.seed, RepairEvery: f.repairEvery,
+		Gap: f.gap, Time: f.time, Rounds: f.rounds, Seed: f.seed, RepairEvery: f.repairEvery, StallRounds: f.stall,
 		Evaluator: decomp.Pool{Workers: f.workers},
 	}
 	if f.gap == 0 {

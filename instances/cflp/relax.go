@@ -26,11 +26,10 @@ const (
 	// combined by a covering knapsack over the sites (Cornuéjols, Sridharan
 	// & Thizy 1991; Beasley 1993, both from memory). It is one engine block
 	// that owns every site and solves the site knapsacks in parallel. At the
-	// same prices its value is never below the site relaxation's, and the
-	// covering knapsack costs little next to the site knapsacks, so it is
-	// chosen whenever it can be solved exactly: the capacities must be
-	// integers after scaling by a power of ten up to 10^6 (see
-	// [ResolveRelaxation]).
+	// same prices its value is never below the site relaxation's (up to the
+	// rounding of non-decimal capacities, see [ResolveRelaxation]), and the
+	// covering knapsack over m sites costs little next to the m site
+	// knapsacks, so it is the default.
 	AggregateRelaxation Relaxation = iota
 	// SiteRelaxation has one block per site: the site opens when its value
 	// is negative (or it is forced open).
@@ -106,9 +105,12 @@ func integralScale(vals ...[]float64) (scale float64, ok bool) {
 }
 
 // ResolveRelaxation returns the relaxation NewProblem will use for the
-// requested one, and a note when it differs: the aggregate relaxation needs
-// capacities that are integers after scaling by a power of ten up to 10^6;
-// otherwise the site relaxation is used.
+// requested one, and a note on how it is solved. The covering knapsack of
+// the aggregate relaxation weighs sites by capacity: when capacities are
+// decimals with at most 6 places it is exact; otherwise it uses capacities
+// rounded down on a grid of 10^-6 of the largest one, which keeps every
+// open set that covers the demand feasible, so the bound stays valid (it
+// may be slightly weaker).
 func ResolveRelaxation(in *Instance, r Relaxation) (Relaxation, string) {
 	if r != AggregateRelaxation {
 		return r, ""
@@ -118,9 +120,25 @@ func ResolveRelaxation(in *Instance, r Relaxation) (Relaxation, string) {
 		caps[i] = s.Capacity
 	}
 	if _, ok := integralScale(caps); !ok {
-		return SiteRelaxation, "site capacities are not decimals with at most 6 places; using the site relaxation"
+		return r, "site capacities are not decimals with at most 6 places; the covering knapsack rounds them down to 1e-6 of the largest, a valid but slightly weaker bound"
 	}
 	return r, ""
+}
+
+// coverScale returns the factor by which capacities are scaled to the
+// integer weights of the covering knapsack (see ResolveRelaxation).
+func coverScale(caps []float64) float64 {
+	if s, ok := integralScale(caps); ok {
+		return s
+	}
+	top := 0.0
+	for _, c := range caps {
+		top = math.Max(top, c)
+	}
+	if top <= 0 {
+		return 1
+	}
+	return 1e6 / top
 }
 
 // site is one candidate site as the relaxation sees it: its allowed lanes
@@ -179,7 +197,7 @@ func newModel(in *Instance, opt Options) (*model, error) {
 		caps[i] = s.Capacity
 	}
 	if md.relax == AggregateRelaxation {
-		md.capScale, _ = integralScale(caps)
+		md.capScale = coverScale(caps)
 	}
 	dem := make([]float64, len(in.Customers))
 	for j, c := range in.Customers {
@@ -424,18 +442,22 @@ func (b *aggregateBlock) Solve(ctx context.Context, req *decomp.Request, ans *de
 		// Close as much value as possible among the candidates while the
 		// open capacity still covers the shortfall:
 		// max Σ v_i w_i  s.t.  Σ s_i w_i <= Σ_cand s_i − short.
+		// Weights are capacities scaled and rounded down (exact when the
+		// scale makes them integers); the room is rounded up a little. Both
+		// keep every covering choice feasible, so the knapsack can only be
+		// looser and the relaxed value stays a valid bound.
 		sc := md.capScale
-		var total int64
+		candCap := 0.0
 		b.profit, b.weight = b.profit[:0], b.weight[:0]
 		for _, i := range b.cand {
-			w := int64(math.Round(md.sites[i].capacity * sc))
+			c := md.sites[i].capacity * sc
+			w := int64(math.Floor(c + 1e-9*math.Max(1, c)))
 			b.profit = append(b.profit, b.value[i])
 			b.weight = append(b.weight, w)
-			total += w
+			candCap += md.sites[i].capacity
 		}
-		// The capacity is rounded up a little: a looser knapsack can only
-		// lower the relaxed value, which keeps it a valid bound.
-		room := math.Floor(float64(total) - short*sc + 1e-7*math.Max(1, short*sc))
+		t := (candCap - short) * sc
+		room := math.Floor(t + 1e-7*math.Max(1, math.Abs(t)))
 		if room < 0 {
 			room = -1 // even opening every candidate is short: open them all
 		}

@@ -15,7 +15,7 @@ import (
 )
 
 // randomTiny draws a small valid instance: 2-4 sites, 3-6 customers,
-// integer or one-decimal data, some forbidden lanes and forced statuses.
+// integer or one-decimal data (capacities sometimes arbitrary reals), some forbidden lanes and forced statuses.
 func randomTiny(rng *rand.Rand) *Instance {
 	for {
 		m, n := 2+rng.IntN(3), 3+rng.IntN(4)
@@ -37,8 +37,12 @@ func randomTiny(rng *rand.Rand) *Instance {
 		for i := 0; i < m; i++ {
 			s := Site{ID: "s" + strconv.Itoa(i), Capacity: math.Round(total*(0.3+0.6*rng.Float64())*10) / 10,
 				FixedCost: num(0, 60)}
-			if !decimals {
+			switch {
+			case !decimals:
 				s.Capacity = math.Round(s.Capacity)
+			case rng.IntN(2) == 0:
+				// Not a short decimal: the covering knapsack rounds it.
+				s.Capacity = total * (0.3 + 0.6*rng.Float64())
 			}
 			switch rng.IntN(10) {
 			case 0:

@@ -153,16 +153,11 @@ func (r *repairer) Repair(ctx context.Context, rin *decomp.RepairInput) (*decomp
 		return nil, err
 	}
 	sol.Optimal = optimal
-	if optimal && rin.Best != nil && rin.Best.Value <= sol.Value+1e-9*math.Max(1, math.Abs(sol.Value)) {
-		// The engine keeps its best plan when this one is no better; that
-		// plan is then proved optimal too (the repairer made its Detail).
-		rin.Best.Detail.(*Solution).Optimal = true
-	}
 	use := make([]float64, len(md.in.Customers))
 	for j := range use {
 		use[j] = 1
 	}
-	return &decomp.Plan{Value: sol.Value, Use: use, Detail: sol}, nil
+	return &decomp.Plan{Value: sol.Value, Use: use, Detail: sol, Proved: optimal}, nil
 }
 
 // evalFrac is eval with continuous shares, used to rank sites.

@@ -111,6 +111,18 @@ func NewProblem(in *Instance, opt Options) (*decomp.Problem, error) {
 	default:
 		return nil, fmt.Errorf("gap: unknown relaxation %d", opt.Relaxation)
 	}
+	// Every job at its worst agent bounds every plan's value: a bound past
+	// it proves the instance infeasible.
+	for j := 0; j < in.Jobs; j++ {
+		worst := in.Cost[0][j]
+		for i := 1; i < in.Agents; i++ {
+			if c := in.Cost[i][j]; (opt.Maximise && c < worst) || (!opt.Maximise && c > worst) {
+				worst = c
+			}
+		}
+		p.PlanLimit += float64(worst)
+	}
+	p.HasPlanLimit = true
 	p.Repair = newRepairer(in, opt)
 	return p, nil
 }
@@ -197,6 +209,10 @@ type repairer struct {
 	priced   [][]float64
 	relaxed  [][]int
 	options  [][]int // choice relaxation: agents of each job's options
+	// failures counts repairs in a row that found no plan; while it grows
+	// the repairer skips more and more calls (deterministically), so an
+	// infeasible or very tight instance does not spend the run repairing.
+	failures, skip int
 }
 
 func newRepairer(in *Instance, opt Options) *repairer {
@@ -218,6 +234,9 @@ func newRepairer(in *Instance, opt Options) *repairer {
 	return &repairer{in: in, opt: opt, model: m}
 }
 
+// finalPasses bounds the local-search passes of the last repair.
+const finalPasses = 4
+
 // improveSettings gives the move budget of a repair: a light polish in
 // rounds, a thorough search at the end (which the time limit may cut).
 // The budgets count moves, so runs are reproducible.
@@ -227,7 +246,7 @@ func (r *repairer) improveSettings(final bool) heuristics.ImproveSettings {
 		if r.opt.FinalImprove != (heuristics.ImproveSettings{}) {
 			return r.opt.FinalImprove
 		}
-		return heuristics.ImproveSettings{Moves: 200*n + 20000}
+		return heuristics.ImproveSettings{Moves: 10*n + 2000}
 	}
 	if r.opt.Improve != (heuristics.ImproveSettings{}) {
 		return r.opt.Improve
@@ -282,6 +301,10 @@ func (r *repairer) Repair(ctx context.Context, rin *decomp.RepairInput) (*decomp
 			}
 		}
 	}
+	if !rin.Final && r.skip > 0 {
+		r.skip--
+		return nil, nil
+	}
 	rng := rand.New(rand.NewPCG(rin.Seed, 0x6a6f62))
 	var assign []int
 	if rin.Final && rin.Best != nil {
@@ -291,10 +314,25 @@ func (r *repairer) Repair(ctx context.Context, rin *decomp.RepairInput) (*decomp
 		var ok bool
 		assign, ok = r.searcher.Repair(ctx, relaxed, priced, rng)
 		if !ok {
+			r.failures++
+			r.skip = 1<<min(r.failures, 6) - 1
 			return nil, nil
 		}
+		r.failures = 0
 	}
-	assign, _ = r.searcher.Improve(ctx, assign, r.improveSettings(rin.Final), rng)
+	settings := r.improveSettings(rin.Final)
+	assign, value := r.searcher.Improve(ctx, assign, settings, rng)
+	if rin.Final {
+		// A few more passes while they pay off (each from the best so far,
+		// with fresh random choices).
+		for pass := 1; pass < finalPasses && ctx.Err() == nil; pass++ {
+			next, v := r.searcher.Improve(ctx, assign, settings, rng)
+			if !rin.Sense.Better(v, value) {
+				break
+			}
+			assign, value = next, v
+		}
+	}
 	return r.plan(assign), nil
 }
 
