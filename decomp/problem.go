@@ -126,6 +126,10 @@ type RepairInput struct {
 	Sense   Sense     // objective sense
 	Prices  []float64 // prices at which Answers were computed
 	Answers []Answer  // one per block, in block order
+	// Bound is the best bound so far and BoundPrices the prices that gave
+	// it (an exact search in the repairer may price its own bounds there).
+	Bound       float64
+	BoundPrices []float64
 	Best    *Plan     // best plan so far, or nil
 	Seed    uint64    // derived from Settings.Seed and Round, for reproducible randomness
 }

@@ -382,6 +382,7 @@ func (r *runner) repair(ctx context.Context, round int, final bool) (bool, error
 	in := &RepairInput{
 		Round: round, Final: final, Sense: r.p.Sense, Prices: r.prices,
 		Answers: r.answers, Best: r.plan, Seed: mixSeed(r.s.Seed, uint64(round)),
+		Bound: r.bound, BoundPrices: r.bestPrices,
 	}
 	plan, err := r.p.Repair.Repair(ctx, in)
 	if err != nil {

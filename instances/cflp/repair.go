@@ -72,6 +72,9 @@ func newRepairer(md *model) *repairer {
 	return r
 }
 
+// exactEvery spaces the exact site searches made during the rounds.
+const exactEvery = 100
+
 // moves returns the local search budget of one repair.
 func (r *repairer) moves(final bool) int {
 	b := r.md.opt.Moves
@@ -132,13 +135,20 @@ func (r *repairer) Repair(ctx context.Context, rin *decomp.RepairInput) (*decomp
 		}
 	}
 	optimal := false
-	if rin.Final && !md.opt.SingleSource {
+	// The exact search over site sets runs at the end and, now and then,
+	// during the rounds (every exactEvery rounds), priced at the best
+	// bound's prices, so that an instance it can close stops early.
+	if (rin.Final || rin.Round%exactEvery == 0) && !md.opt.SingleSource {
 		limit := md.opt.ExactSites
 		if limit == 0 {
 			limit = 64
 		}
 		if free := md.freeSites(); limit > 0 && free <= limit {
-			bo, bv, complete, err := r.branchAndBound(ctx, rin.Prices, open, value)
+			prices := rin.BoundPrices
+			if prices == nil {
+				prices = rin.Prices
+			}
+			bo, bv, complete, err := r.branchAndBound(ctx, prices, open, value)
 			if err != nil {
 				return nil, err
 			}
