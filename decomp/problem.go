@@ -130,8 +130,8 @@ type RepairInput struct {
 	// it (an exact search in the repairer may price its own bounds there).
 	Bound       float64
 	BoundPrices []float64
-	Best    *Plan     // best plan so far, or nil
-	Seed    uint64    // derived from Settings.Seed and Round, for reproducible randomness
+	Best        *Plan  // best plan so far, or nil
+	Seed        uint64 // derived from Settings.Seed and Round, for reproducible randomness
 }
 
 // Repairer turns block answers into a feasible plan. It returns nil (and no
