@@ -10,33 +10,13 @@ import (
 	"math/rand/v2"
 	"os"
 	"path/filepath"
+	"pincer/internal/benchdata"
 	"strconv"
 	"testing"
 )
 
-// benchmarksDir returns the shared benchmark folder ($PINCER_BENCHMARKS, or
-// ../shared/benchmarks beside the repository root) or skips the test.
-func benchmarksDir(tb testing.TB) string {
-	tb.Helper()
-	if d := os.Getenv("PINCER_BENCHMARKS"); d != "" {
-		return d
-	}
-	dir, err := os.Getwd()
-	if err != nil {
-		tb.Fatal(err)
-	}
-	for {
-		if _, err := os.Stat(filepath.Join(dir, "go.mod")); err == nil {
-			break
-		}
-		parent := filepath.Dir(dir)
-		if parent == dir {
-			tb.Skip("no go.mod above the test directory; cannot locate ../shared/benchmarks")
-		}
-		dir = parent
-	}
-	return filepath.Join(dir, "..", "shared", "benchmarks")
-}
+// benchmarksDir returns the shared benchmark folder, or skips the test.
+func benchmarksDir(tb testing.TB) string { return filepath.Dir(benchdata.Dir(tb, "gap")) }
 
 // readOrlib is a minimal reader for the OR-Library multi-instance GAP files
 // (layout from shared/benchmarks/gap/SOURCES.md section 2.1): P, then P blocks

@@ -5,38 +5,14 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"pincer/internal/benchdata"
 	"strconv"
 	"strings"
 	"testing"
 )
 
 // benchDir returns the shared benchmark folder for this family, or skips.
-func benchDir(t testing.TB) string {
-	t.Helper()
-	root := os.Getenv("PINCER_BENCHMARKS")
-	if root == "" {
-		dir, err := os.Getwd()
-		if err != nil {
-			t.Fatal(err)
-		}
-		for {
-			if _, err := os.Stat(filepath.Join(dir, "go.mod")); err == nil {
-				break
-			}
-			parent := filepath.Dir(dir)
-			if parent == dir {
-				t.Skip("benchmarks not found: no go.mod above the test directory and PINCER_BENCHMARKS unset")
-			}
-			dir = parent
-		}
-		root = filepath.Join(dir, "..", "shared", "benchmarks")
-	}
-	d := filepath.Join(root, "cflp")
-	if _, err := os.Stat(d); err != nil {
-		t.Skipf("benchmark folder %s absent (set PINCER_BENCHMARKS): %v", d, err)
-	}
-	return d
-}
+func benchDir(t testing.TB) string { return benchdata.Dir(t, "cflp") }
 
 // reference is one row of the benchmark folder's reference.csv.
 type reference struct {

@@ -4,37 +4,13 @@ import (
 	"encoding/csv"
 	"os"
 	"path/filepath"
+	"pincer/internal/benchdata"
 	"strconv"
 	"testing"
 )
 
 // gapBenchDir returns the shared GAP benchmark folder, or skips the test.
-func gapBenchDir(t testing.TB) string {
-	t.Helper()
-	root := os.Getenv("PINCER_BENCHMARKS")
-	if root == "" {
-		dir, err := os.Getwd()
-		if err != nil {
-			t.Fatal(err)
-		}
-		for {
-			if _, err := os.Stat(filepath.Join(dir, "go.mod")); err == nil {
-				break
-			}
-			parent := filepath.Dir(dir)
-			if parent == dir {
-				t.Skip("benchmark data absent: no go.mod above the package and PINCER_BENCHMARKS unset")
-			}
-			dir = parent
-		}
-		root = filepath.Join(dir, "..", "shared", "benchmarks")
-	}
-	gap := filepath.Join(root, "gap")
-	if _, err := os.Stat(filepath.Join(gap, "reference.csv")); err != nil {
-		t.Skipf("GAP benchmark data absent (%v); set PINCER_BENCHMARKS", err)
-	}
-	return gap
-}
+func gapBenchDir(t testing.TB) string { return benchdata.Dir(t, "gap") }
 
 // gapRefRow is one row of the shared reference.csv.
 type gapRefRow struct {

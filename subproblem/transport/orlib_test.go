@@ -5,39 +5,14 @@ import (
 	"math/bits"
 	"os"
 	"path/filepath"
+	"pincer/internal/benchdata"
 	"strconv"
 	"strings"
 	"testing"
 )
 
-// benchmarksDir returns the shared benchmark folder: $PINCER_BENCHMARKS,
-// or ../shared/benchmarks next to the directory holding go.mod. It skips
-// the test when the folder is absent.
-func benchmarksDir(t testing.TB) string {
-	t.Helper()
-	dir := os.Getenv("PINCER_BENCHMARKS")
-	if dir == "" {
-		d, err := os.Getwd()
-		if err != nil {
-			t.Skipf("benchmark data not found: %v", err)
-		}
-		for {
-			if _, err := os.Stat(filepath.Join(d, "go.mod")); err == nil {
-				break
-			}
-			parent := filepath.Dir(d)
-			if parent == d {
-				t.Skip("benchmark data not found: no go.mod above the test directory and PINCER_BENCHMARKS unset")
-			}
-			d = parent
-		}
-		dir = filepath.Join(d, "..", "shared", "benchmarks")
-	}
-	if _, err := os.Stat(dir); err != nil {
-		t.Skipf("benchmark folder %s absent (set PINCER_BENCHMARKS): %v", dir, err)
-	}
-	return dir
-}
+// benchmarksDir returns the shared benchmark folder, or skips the test.
+func benchmarksDir(t testing.TB) string { return filepath.Dir(benchdata.Dir(t, "cflp")) }
 
 // cflpFile is a capacitated facility location instance in the OR-Library
 // layout: m n, then m pairs (capacity, fixed cost), then per customer its
