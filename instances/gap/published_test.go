@@ -60,7 +60,7 @@ func TestPublishedOptima(t *testing.T) {
 			}
 			want := float64(r.value) // reference.csv, see the test's doc comment
 			// Once the plan has reached the published optimum only the bound
-			// is left to check; the run is stopped after 200 rounds then, to
+			// is left to check; the run is stopped after 100 rounds then, to
 			// keep the test short while still checking many price vectors
 			// (runs that prove optimality stop earlier by themselves).
 			ctx, cancel := context.WithCancel(context.Background())
@@ -71,7 +71,7 @@ func TestPublishedOptima(t *testing.T) {
 					if reached == 0 {
 						reached = pr.Record.Round
 					}
-					if pr.Record.Round >= 200 {
+					if pr.Record.Round >= 100 {
 						cancel()
 					}
 				}
