@@ -213,6 +213,7 @@ type repairer struct {
 	// the repairer skips more and more calls (deterministically), so an
 	// infeasible or very tight instance does not spend the run repairing.
 	failures, skip int
+	calls          int // in-round improvements made
 }
 
 func newRepairer(in *Instance, opt Options) *repairer {
@@ -235,7 +236,11 @@ func newRepairer(in *Instance, opt Options) *repairer {
 }
 
 // finalPasses bounds the local-search passes of the last repair.
-const finalPasses = 4
+const finalPasses = 8
+
+// searchEvery makes every so many in-round repairs run the tabu search
+// too (the others only descend).
+const searchEvery = 8
 
 // improveSettings gives the move budget of a repair: a light polish in
 // rounds, a thorough search at the end (which the time limit may cut).
@@ -251,8 +256,12 @@ func (r *repairer) improveSettings(final bool) heuristics.ImproveSettings {
 	if r.opt.Improve != (heuristics.ImproveSettings{}) {
 		return r.opt.Improve
 	}
-	// In rounds only the descent runs (no tabu moves): repairs are
-	// frequent, and the tabu search pays off once, on the best plan.
+	// Repairs in rounds are frequent: most only descend, and every
+	// searchEvery-th one also runs the tabu search.
+	r.calls++
+	if r.calls%searchEvery == 0 {
+		return heuristics.ImproveSettings{PairNodes: -1}
+	}
 	return heuristics.ImproveSettings{Moves: -1, PairNodes: -1}
 }
 
@@ -323,14 +332,16 @@ func (r *repairer) Repair(ctx context.Context, rin *decomp.RepairInput) (*decomp
 	settings := r.improveSettings(rin.Final)
 	assign, value := r.searcher.Improve(ctx, assign, settings, rng)
 	if rin.Final {
-		// A few more passes while they pay off (each from the best so far,
-		// with fresh random choices).
-		for pass := 1; pass < finalPasses && ctx.Err() == nil; pass++ {
+		// More passes while they pay off (each from the best so far, with
+		// fresh random choices); two fruitless passes in a row end it.
+		idle := 0
+		for pass := 1; pass < finalPasses && idle < 2 && ctx.Err() == nil; pass++ {
 			next, v := r.searcher.Improve(ctx, assign, settings, rng)
-			if !rin.Sense.Better(v, value) {
-				break
+			if rin.Sense.Better(v, value) {
+				assign, value, idle = next, v, 0
+			} else {
+				idle++
 			}
-			assign, value = next, v
 		}
 	}
 	return r.plan(assign), nil
