@@ -37,12 +37,27 @@ const (
 	SearchClosed
 )
 
-var statusNames = [...]string{"", "gap-reached", "integer-closed", "prices-settled", "round-limit", "time-limit", "stalled", "interrupted", "proved-infeasible", "search-closed"}
-
 // String returns the stop reason as used in reports.
 func (s Status) String() string {
-	if int(s) > 0 && int(s) < len(statusNames) {
-		return statusNames[s]
+	switch s {
+	case GapReached:
+		return "gap-reached"
+	case IntegerClosed:
+		return "integer-closed"
+	case PricesSettled:
+		return "prices-settled"
+	case RoundLimit:
+		return "round-limit"
+	case TimeLimit:
+		return "time-limit"
+	case Stalled:
+		return "stalled"
+	case Interrupted:
+		return "interrupted"
+	case ProvedInfeasible:
+		return "proved-infeasible"
+	case SearchClosed:
+		return "search-closed"
 	}
 	return fmt.Sprintf("status(%d)", int(s))
 }

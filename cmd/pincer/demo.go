@@ -17,18 +17,22 @@ import (
 // week. Each order can be built at any workshop, but workshops differ in
 // skill (hours an order takes there), hourly rate and distance to the
 // customer, and each has a limited number of hours this week.
-var demoPlants = []struct {
+type demoPlant struct {
 	name string
 	rate float64 // dollars per hour
 	x, y float64 // location, km on a 400 x 400 km map
-}{
-	{"Ashcombe", 41, 20, 40}, {"Bellwater", 38, 90, 310}, {"Cinder Vale", 44, 150, 120},
-	{"Dunmore Quay", 36, 380, 60}, {"Elder Ford", 39, 210, 270}, {"Fallowmere", 42, 60, 180},
-	{"Greyhaven", 35, 330, 350}, {"Hollins Cross", 40, 260, 30}, {"Ivybridge Mill", 43, 120, 380},
-	{"Juniper Row", 37, 300, 190}, {"Kestrel Point", 45, 30, 330}, {"Larkspur", 38, 180, 200},
-	{"Mossgate", 41, 370, 260}, {"Northwick", 36, 240, 110}, {"Orchard End", 40, 100, 60},
-	{"Pennant Hill", 39, 160, 340}, {"Quarry Lane", 44, 280, 330}, {"Rookley", 37, 340, 130},
-	{"Saltmarsh", 42, 70, 250}, {"Thornbury Yard", 38, 200, 10},
+}
+
+func demoPlants() []demoPlant {
+	return []demoPlant{
+		{"Ashcombe", 41, 20, 40}, {"Bellwater", 38, 90, 310}, {"Cinder Vale", 44, 150, 120},
+		{"Dunmore Quay", 36, 380, 60}, {"Elder Ford", 39, 210, 270}, {"Fallowmere", 42, 60, 180},
+		{"Greyhaven", 35, 330, 350}, {"Hollins Cross", 40, 260, 30}, {"Ivybridge Mill", 43, 120, 380},
+		{"Juniper Row", 37, 300, 190}, {"Kestrel Point", 45, 30, 330}, {"Larkspur", 38, 180, 200},
+		{"Mossgate", 41, 370, 260}, {"Northwick", 36, 240, 110}, {"Orchard End", 40, 100, 60},
+		{"Pennant Hill", 39, 160, 340}, {"Quarry Lane", 44, 280, 330}, {"Rookley", 37, 340, 130},
+		{"Saltmarsh", 42, 70, 250}, {"Thornbury Yard", 38, 200, 10},
+	}
 }
 
 const demoOrders = 600
@@ -36,7 +40,7 @@ const demoOrders = 600
 // demoInstance builds the scenario deterministically.
 func demoInstance() *gap.Instance {
 	rng := rand.New(rand.NewPCG(2026, 12))
-	m := len(demoPlants)
+	m := len(demoPlants())
 	in := &gap.Instance{Name: "Brackenridge Joinery, week 49", Agents: m, Jobs: demoOrders,
 		Cost: make([][]int64, m), Use: make([][]int64, m), Capacity: make([]int64, m)}
 	skill := make([]float64, m)
@@ -49,7 +53,7 @@ func demoInstance() *gap.Instance {
 		work := 4 + rng.Float64()*26 // hours at an average workshop
 		cx, cy := rng.Float64()*400, rng.Float64()*400
 		volume := 1 + rng.Float64()*3 // truckload fraction
-		for i, p := range demoPlants {
+		for i, p := range demoPlants() {
 			hours := math.Max(1, math.Round(work*skill[i]*(0.9+0.2*rng.Float64())))
 			km := math.Hypot(p.x-cx, p.y-cy)
 			in.Use[i][j] = int64(hours)
@@ -90,8 +94,8 @@ func newDemoCmd() *cobra.Command {
 				return badInput(fmt.Errorf("unknown --scenario %q (want orders or sites)", scenario))
 			}
 			in := demoInstance()
-			names := make([]string, len(demoPlants))
-			for i, p := range demoPlants {
+			names := make([]string, len(demoPlants()))
+			for i, p := range demoPlants() {
 				names[i] = p.name
 			}
 			m := &gapModel{in: in, opt: gap.Options{}, agentNames: names}

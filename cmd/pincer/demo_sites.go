@@ -17,24 +17,28 @@ import (
 // throughput in pallets and a weekly running cost (lease, staff, energy);
 // trucking costs $1.90 per pallet-kilometre. Which warehouses should it
 // run, and how should the shops be supplied?
-var sitesDemoWarehouses = []struct {
+type sitesDemoWarehouse struct {
 	name     string
 	x, y     float64 // km on a 300 x 300 km map
 	capacity float64 // pallets a week
 	running  float64 // dollars a week
-}{
-	{"Abbotsmere", 30, 40, 900, 15200}, {"Blackthorn Quay", 280, 20, 1100, 17900},
-	{"Coldharbour", 150, 150, 1500, 23800}, {"Drovers Cross", 70, 220, 800, 13100},
-	{"Easterbrook", 240, 250, 950, 15800}, {"Fairlight", 120, 60, 1200, 19400},
-	{"Gorsey Bank", 200, 100, 850, 13900}, {"Hatherleigh", 20, 150, 700, 11800},
-	{"Inchmore", 260, 160, 1000, 16500}, {"Jessop's Yard", 110, 280, 750, 12600},
-	{"Kingsmead", 180, 210, 1300, 21000}, {"Longacre", 60, 100, 1000, 16300},
-	{"Millbeck", 220, 50, 900, 14700}, {"Nettlecombe", 150, 20, 650, 11200},
-	{"Oxley Park", 290, 290, 800, 13300}, {"Pyebridge", 40, 280, 850, 14100},
-	{"Quenby", 100, 180, 1100, 18000}, {"Redgate", 190, 290, 700, 11900},
-	{"Stanwick", 250, 110, 1200, 19600}, {"Tollerton", 80, 20, 750, 12500},
-	{"Upwell", 160, 90, 1400, 22300}, {"Vinehall", 10, 80, 600, 10400},
-	{"Wrenfield", 210, 170, 950, 15600}, {"Yarrowby", 130, 230, 1000, 16400},
+}
+
+func sitesDemoWarehouses() []sitesDemoWarehouse {
+	return []sitesDemoWarehouse{
+		{"Abbotsmere", 30, 40, 900, 15200}, {"Blackthorn Quay", 280, 20, 1100, 17900},
+		{"Coldharbour", 150, 150, 1500, 23800}, {"Drovers Cross", 70, 220, 800, 13100},
+		{"Easterbrook", 240, 250, 950, 15800}, {"Fairlight", 120, 60, 1200, 19400},
+		{"Gorsey Bank", 200, 100, 850, 13900}, {"Hatherleigh", 20, 150, 700, 11800},
+		{"Inchmore", 260, 160, 1000, 16500}, {"Jessop's Yard", 110, 280, 750, 12600},
+		{"Kingsmead", 180, 210, 1300, 21000}, {"Longacre", 60, 100, 1000, 16300},
+		{"Millbeck", 220, 50, 900, 14700}, {"Nettlecombe", 150, 20, 650, 11200},
+		{"Oxley Park", 290, 290, 800, 13300}, {"Pyebridge", 40, 280, 850, 14100},
+		{"Quenby", 100, 180, 1100, 18000}, {"Redgate", 190, 290, 700, 11900},
+		{"Stanwick", 250, 110, 1200, 19600}, {"Tollerton", 80, 20, 750, 12500},
+		{"Upwell", 160, 90, 1400, 22300}, {"Vinehall", 10, 80, 600, 10400},
+		{"Wrenfield", 210, 170, 950, 15600}, {"Yarrowby", 130, 230, 1000, 16400},
+	}
 }
 
 const (
@@ -50,7 +54,7 @@ const (
 func sitesDemoInstance() *cflp.Instance {
 	rng := rand.New(rand.NewPCG(2027, 3))
 	in := &cflp.Instance{Name: "Marrowby Provisions, network plan"}
-	for i, w := range sitesDemoWarehouses {
+	for i, w := range sitesDemoWarehouses() {
 		in.Sites = append(in.Sites, cflp.Site{ID: fmt.Sprintf("W%02d", i+1), Name: w.name,
 			Capacity: math.Round(w.capacity * sitesDemoSqueeze), FixedCost: w.running})
 	}
@@ -58,14 +62,14 @@ func sitesDemoInstance() *cflp.Instance {
 	shops := make([]point, sitesDemoShops)
 	for j := range shops {
 		// Shops cluster around a few market towns.
-		town := sitesDemoWarehouses[rng.IntN(len(sitesDemoWarehouses))]
+		town := sitesDemoWarehouses()[rng.IntN(len(sitesDemoWarehouses()))]
 		shops[j] = point{math.Min(300, math.Max(0, town.x+rng.NormFloat64()*35)), math.Min(300, math.Max(0, town.y+rng.NormFloat64()*35))}
 		pallets := float64(8 + rng.IntN(33)) // pallets a week
 		in.Customers = append(in.Customers, cflp.Customer{ID: fmt.Sprintf("S%03d", j+1),
 			Name: fmt.Sprintf("shop %d", j+1), Demand: pallets})
 	}
 	in.Cost = make([][]float64, len(in.Sites))
-	for i, w := range sitesDemoWarehouses {
+	for i, w := range sitesDemoWarehouses() {
 		in.Cost[i] = make([]float64, sitesDemoShops)
 		for j, s := range shops {
 			km := math.Hypot(w.x-s.x, w.y-s.y) + 5 // plus local delivery

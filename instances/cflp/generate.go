@@ -20,13 +20,20 @@ const (
 )
 
 // Invented syllables for place names.
-var (
-	genPlaceHeads = [...]string{"Ash", "Bram", "Cal", "Dun", "Elm", "Fen", "Glen", "Hart", "Ives", "Kel",
+func genPlaceHeads() [20]string {
+	return [...]string{"Ash", "Bram", "Cal", "Dun", "Elm", "Fen", "Glen", "Hart", "Ives", "Kel",
 		"Lark", "Mor", "Nor", "Oak", "Pen", "Quill", "Ros", "Sel", "Thorn", "Wyn"}
-	genPlaceTails = [...]string{"ford", "by", "wick", "ton", "mere", "stead", "bury", "field", "haven", "moor"}
-	genSiteKinds  = [...]string{"depot", "warehouse", "hub", "yard"}
-	genCustKinds  = [...]string{"store", "market", "outlet", "works", "clinic", "school"}
-)
+}
+
+func genPlaceTails() [10]string {
+	return [...]string{"ford", "by", "wick", "ton", "mere", "stead", "bury", "field", "haven", "moor"}
+}
+
+func genSiteKinds() [4]string { return [...]string{"depot", "warehouse", "hub", "yard"} }
+
+func genCustKinds() [6]string {
+	return [...]string{"store", "market", "outlet", "works", "clinic", "school"}
+}
 
 // Generate returns a random instance with the given numbers of sites and
 // customers. Sites and customers are points uniform in the unit square;
@@ -49,7 +56,7 @@ func Generate(sites, customers int, ratio float64, seed uint64) (*Instance, erro
 	rng := rand.New(rand.NewPCG(seed, 0x63666c70)) // second word: "cflp"
 	uniform := func(lo, hi float64) float64 { return lo + (hi-lo)*rng.Float64() }
 	place := func() string {
-		return genPlaceHeads[rng.IntN(len(genPlaceHeads))] + genPlaceTails[rng.IntN(len(genPlaceTails))]
+		return genPlaceHeads()[rng.IntN(len(genPlaceHeads()))] + genPlaceTails()[rng.IntN(len(genPlaceTails()))]
 	}
 
 	in := &Instance{
@@ -67,7 +74,7 @@ func Generate(sites, customers int, ratio float64, seed uint64) (*Instance, erro
 		total += d
 		in.Customers[j] = Customer{
 			ID:     fmt.Sprintf("C%04d", j+1),
-			Name:   place() + " " + genCustKinds[rng.IntN(len(genCustKinds))],
+			Name:   place() + " " + genCustKinds()[rng.IntN(len(genCustKinds()))],
 			Demand: d,
 		}
 	}
@@ -79,7 +86,7 @@ func Generate(sites, customers int, ratio float64, seed uint64) (*Instance, erro
 		raw += s
 		in.Sites[i] = Site{
 			ID:       fmt.Sprintf("S%03d", i+1),
-			Name:     place() + " " + genSiteKinds[rng.IntN(len(genSiteKinds))],
+			Name:     place() + " " + genSiteKinds()[rng.IntN(len(genSiteKinds()))],
 			Capacity: s,
 		}
 	}

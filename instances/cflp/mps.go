@@ -135,13 +135,13 @@ func WriteMPS(w io.Writer, in *Instance, singleSource bool) error {
 
 // mpsColumns are the 1-based starting columns of the six fields of a data
 // line in the fixed layout; each field is followed by at least one blank.
-var mpsColumns = [6]int{2, 5, 15, 25, 40, 50}
+func mpsColumns() [6]int { return [6]int{2, 5, 15, 25, 40, 50} }
 
 // mpsLine places the fields at their fixed-layout columns.
 func mpsLine(fields ...string) string {
 	var b []byte
 	for k, f := range fields {
-		for len(b) < mpsColumns[k]-1 {
+		for len(b) < mpsColumns()[k]-1 {
 			b = append(b, ' ')
 		}
 		b = append(b, f...)

@@ -372,7 +372,7 @@ func TestWriteMPSLayout(t *testing.T) {
 			continue
 		}
 		lines++
-		for k, start := range mpsColumns {
+		for k, start := range mpsColumns() {
 			if len(l) < start {
 				break
 			}
@@ -380,8 +380,8 @@ func TestWriteMPSLayout(t *testing.T) {
 				t.Fatalf("%s line %q: no blank before column %d", section, l, start)
 			}
 			end := len(l)
-			if k+1 < len(mpsColumns) {
-				end = min(end, mpsColumns[k+1]-1)
+			if k+1 < len(mpsColumns()) {
+				end = min(end, mpsColumns()[k+1]-1)
 			}
 			if f := strings.TrimSpace(l[start-1 : end]); strings.Contains(f, " ") || (k == 3 || k == 5) && len(f) > 12 || (k == 1 || k == 2 || k == 4) && len(f) > 8 {
 				t.Fatalf("%s line %q: field %d %q out of place", section, l, k+1, f)

@@ -19,10 +19,12 @@ const capacityWord = "capacity"
 // family, for variants 1 to 4. Values from OR-Library's description
 // (Beasley 1988, Table 1) as recorded in the benchmark folder's SOURCES.md,
 // which notes they are from memory but corroborated by the published optima.
-var capacityVariants = map[string][4]float64{
-	"capa": {8000, 10000, 12000, 14000},
-	"capb": {5000, 6000, 7000, 8000},
-	"capc": {5000, 5750, 6500, 7250},
+func capacityVariants() map[string][4]float64 {
+	return map[string][4]float64{
+		"capa": {8000, 10000, 12000, 14000},
+		"capb": {5000, 6000, 7000, 8000},
+		"capc": {5000, 5750, 6500, 7250},
+	}
 }
 
 // maxToken bounds the length of one token; no number in the format needs
@@ -69,7 +71,7 @@ func ReadORLib(r io.Reader, file string, index int) (*Instance, error) {
 		}
 		var capacity float64
 		if tok.text == capacityWord {
-			variants, ok := capacityVariants[familyOf(stem)]
+			variants, ok := capacityVariants()[familyOf(stem)]
 			if !ok {
 				return nil, t.errorAt(tok, fmt.Sprintf(
 					"capacity of site %d (a number; the word %q stands for a capacity only in files named capa*, capb* or capc*, and this file is %q)",
@@ -146,7 +148,7 @@ func ReadORLib(r io.Reader, file string, index int) (*Instance, error) {
 // those families, and "" otherwise.
 func familyOf(stem string) string {
 	s := strings.ToLower(stem)
-	for f := range capacityVariants {
+	for f := range capacityVariants() {
 		if strings.HasPrefix(s, f) {
 			return f
 		}

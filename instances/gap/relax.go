@@ -236,7 +236,7 @@ func newRepairer(in *Instance, opt Options) *repairer {
 }
 
 // finalPasses bounds the local-search passes of the last repair.
-const finalPasses = 8
+const finalPasses = 12
 
 // searchEvery makes every so many in-round repairs run the tabu search
 // too (the others only descend).
@@ -260,7 +260,7 @@ func (r *repairer) improveSettings(final bool) heuristics.ImproveSettings {
 	// searchEvery-th one also runs the tabu search.
 	r.calls++
 	if r.calls%searchEvery == 0 {
-		return heuristics.ImproveSettings{PairNodes: -1}
+		return heuristics.ImproveSettings{Moves: n + 200, PairNodes: -1}
 	}
 	return heuristics.ImproveSettings{Moves: -1, PairNodes: -1}
 }
@@ -333,9 +333,9 @@ func (r *repairer) Repair(ctx context.Context, rin *decomp.RepairInput) (*decomp
 	assign, value := r.searcher.Improve(ctx, assign, settings, rng)
 	if rin.Final {
 		// More passes while they pay off (each from the best so far, with
-		// fresh random choices); two fruitless passes in a row end it.
+		// fresh random choices); three fruitless passes in a row end it.
 		idle := 0
-		for pass := 1; pass < finalPasses && idle < 2 && ctx.Err() == nil; pass++ {
+		for pass := 1; pass < finalPasses && idle < 3 && ctx.Err() == nil; pass++ {
 			next, v := r.searcher.Improve(ctx, assign, settings, rng)
 			if rin.Sense.Better(v, value) {
 				assign, value, idle = next, v, 0
