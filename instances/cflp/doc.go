@@ -16,8 +16,11 @@
 // In the pincer flow this package is the first two steps: it turns files into
 // the family model [Instance] (OR-Library capacitated warehouse files with
 // [ReadORLib], a folder of CSV files with [ReadScenario], or random data with
-// [Generate]). The engine problem is built from the model elsewhere; after
-// the rounds, the result is reported with [WritePlanCSV] and [WriteSitesCSV],
+// [Generate]), and [NewProblem] wires it into the engine: one block per site
+// (or one block over all sites that also keeps the aggregate capacity row),
+// priced demand rows, and a repair that allocates exactly with the
+// transportation solver and searches the set of open sites. After the
+// rounds, the result is reported with [WritePlanCSV] and [WriteSitesCSV],
 // and any plan, whoever produced it, can be checked by [Verify], which shares
 // no code with the engine. [WriteMPS] exports the model for a general-purpose
 // solver, which tests use as an oracle.
