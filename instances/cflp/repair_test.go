@@ -1,12 +1,15 @@
 package cflp
 
 import (
+	"io"
+
+	"pincer/internal/oracle"
+
 	"context"
 	"math"
 	"os"
 	"os/exec"
 	"path/filepath"
-	"strconv"
 	"strings"
 	"testing"
 	"time"
@@ -79,36 +82,11 @@ func TestORLibSmallOptima(t *testing.T) {
 // coin-or package, an outside oracle), returning its proved optimum.
 func cbcOptimum(t *testing.T, in *Instance, single bool) float64 {
 	t.Helper()
-	path := filepath.Join(t.TempDir(), "model.mps")
-	f, err := os.Create(path)
-	if err != nil {
-		t.Fatal(err)
+	o := oracle.CBC(t, func(w io.Writer) error { return WriteMPS(w, in, single) }, 600)
+	if !o.Optimal {
+		t.Fatalf("cbc did not prove optimality:\n%s", o.Output)
 	}
-	if err := WriteMPS(f, in, single); err != nil {
-		t.Fatal(err)
-	}
-	if err := f.Close(); err != nil {
-		t.Fatal(err)
-	}
-	out, err := exec.Command("cbc", path, "solve").CombinedOutput()
-	if err != nil {
-		t.Fatalf("cbc: %v\n%s", err, out)
-	}
-	text := string(out)
-	if !strings.Contains(text, "Result - Optimal solution found") {
-		t.Fatalf("cbc did not prove optimality:\n%s", text)
-	}
-	for _, line := range strings.Split(text, "\n") {
-		if rest, ok := strings.CutPrefix(line, "Objective value:"); ok {
-			v, err := strconv.ParseFloat(strings.TrimSpace(rest), 64)
-			if err != nil {
-				t.Fatalf("cbc objective %q: %v", rest, err)
-			}
-			return v
-		}
-	}
-	t.Fatalf("no objective in cbc output:\n%s", text)
-	return 0
+	return o.Objective
 }
 
 // TestCBCOracle checks bound <= CBC optimum <= plan value on generated

@@ -1,59 +1,27 @@
 package gap
 
 import (
+	"io"
+
+	"pincer/internal/oracle"
+
 	"context"
 	"fmt"
 	"math"
-	"os"
 	"os/exec"
-	"path/filepath"
-	"regexp"
-	"strconv"
-	"strings"
 	"testing"
 	"time"
 
 	"pincer/decomp"
 )
 
-// cbcOptimum solves the exported model (always a minimisation, see
-// WriteMPS) with the outside MIP solver cbc, used only as an oracle, under
-// a CPU limit of limit seconds. It returns the objective value and whether
-// cbc reported the solution optimal.
-func cbcOptimum(t *testing.T, bin string, in *Instance, maximise bool, limit int) (obj float64, optimal bool) {
+// cbcOptimum solves the exported model with the outside MIP solver cbc
+// under a CPU limit of limit seconds and returns the objective and whether
+// cbc proved it optimal.
+func cbcOptimum(t *testing.T, in *Instance, maximise bool, limit int) (obj float64, optimal bool) {
 	t.Helper()
-	model := filepath.Join(t.TempDir(), "model.mps")
-	f, err := os.Create(model)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if err := WriteMPS(f, in, maximise); err != nil {
-		t.Fatal(err)
-	}
-	if err := f.Close(); err != nil {
-		t.Fatal(err)
-	}
-	// The wall-clock guard is far beyond the CPU limit; it only stops a
-	// hung process.
-	ctx, cancel := context.WithTimeout(context.Background(), time.Duration(4*limit+30)*time.Second)
-	defer cancel()
-	out, err := exec.CommandContext(ctx, bin, model, "sec", strconv.Itoa(limit), "solve").CombinedOutput()
-	if err != nil {
-		t.Fatalf("cbc on %s: %v\n%s", in.Name, err, out)
-	}
-	text := string(out)
-	if strings.Contains(text, "No match") || !strings.Contains(text, "read with 0 errors") {
-		t.Fatalf("cbc complained about the model of %s:\n%s", in.Name, text)
-	}
-	m := regexp.MustCompile(`(?m)^Objective value:\s+(\S+)`).FindStringSubmatch(text)
-	if m == nil {
-		t.Fatalf("cbc printed no objective value for %s:\n%s", in.Name, text)
-	}
-	obj, err = strconv.ParseFloat(m[1], 64)
-	if err != nil {
-		t.Fatalf("cbc objective %q: %v", m[1], err)
-	}
-	return obj, strings.Contains(text, "Result - Optimal solution found")
+	o := oracle.CBC(t, func(w io.Writer) error { return WriteMPS(w, in, maximise) }, limit)
+	return o.Objective, o.Optimal
 }
 
 // TestAgainstCBC compares pincer with the optimum that cbc proves on 20
@@ -66,8 +34,7 @@ func TestAgainstCBC(t *testing.T) {
 	if testing.Short() {
 		t.Skip("cbc comparison takes about a minute; skipped in -short mode")
 	}
-	bin, err := exec.LookPath("cbc")
-	if err != nil {
+	if _, err := exec.LookPath("cbc"); err != nil {
 		t.Skipf("cbc is not on PATH (Debian package coinor-cbc); skipping the oracle comparison: %v", err)
 	}
 	// The cases are the 20 generated instances of the cbc comparison: types
@@ -99,7 +66,7 @@ func TestAgainstCBC(t *testing.T) {
 				t.Fatal(err)
 			}
 			t0 := time.Now()
-			opt, optimal := cbcOptimum(t, bin, in, false, 60)
+			opt, optimal := cbcOptimum(t, in, false, 60)
 			cbcWall := time.Since(t0)
 			if !optimal {
 				t.Fatalf("cbc did not prove optimality within 60 CPU seconds (incumbent %v); the oracle gives no answer", opt)
