@@ -214,6 +214,11 @@ type repairer struct {
 	// infeasible or very tight instance does not spend the run repairing.
 	failures, skip int
 	calls          int // in-round improvements made
+	// idle counts in-round repairs since the best plan last improved; the
+	// longer it grows, the more tabu moves the periodic search gets, and
+	// it then starts from the best plan (the bound has usually settled by
+	// then, so the run's time is better spent on the plan).
+	idle int
 }
 
 func newRepairer(in *Instance, opt Options) *repairer {
@@ -258,9 +263,9 @@ func (r *repairer) improveSettings(final bool) heuristics.ImproveSettings {
 	}
 	// Repairs in rounds are frequent: most only descend, and every
 	// searchEvery-th one also runs the tabu search.
-	r.calls++
 	if r.calls%searchEvery == 0 {
-		return heuristics.ImproveSettings{Moves: n + 200, PairNodes: -1}
+		scale := min(1+r.idle/32, 16)
+		return heuristics.ImproveSettings{Moves: (n + 200) * scale, PairNodes: -1}
 	}
 	return heuristics.ImproveSettings{Moves: -1, PairNodes: -1}
 }
@@ -316,8 +321,13 @@ func (r *repairer) Repair(ctx context.Context, rin *decomp.RepairInput) (*decomp
 	}
 	rng := rand.New(rand.NewPCG(rin.Seed, 0x6a6f62))
 	var assign []int
-	if rin.Final && rin.Best != nil {
-		// The last repair polishes the best plan found so far.
+	if !rin.Final {
+		r.calls++
+	}
+	intensify := !rin.Final && r.calls%searchEvery == 0 && r.idle >= 32 && rin.Best != nil
+	if (rin.Final || intensify) && rin.Best != nil {
+		// The last repair, and the periodic search once the plan has
+		// stopped improving, work from the best plan found so far.
 		assign = append([]int(nil), rin.Best.Detail.([]int)...)
 	} else {
 		var ok bool
@@ -342,6 +352,13 @@ func (r *repairer) Repair(ctx context.Context, rin *decomp.RepairInput) (*decomp
 			} else {
 				idle++
 			}
+		}
+	}
+	if !rin.Final {
+		if rin.Best == nil || rin.Sense.Better(value, rin.Best.Value) {
+			r.idle = 0
+		} else {
+			r.idle++
 		}
 	}
 	return r.plan(assign), nil
