@@ -207,6 +207,7 @@ type runner struct {
 	hasBound           bool
 	plan               *Plan
 	planProved         bool
+	pending            chan repairOutcome // the repair running, if any
 	history            []RoundRecord
 }
 
@@ -266,10 +267,10 @@ func (r *runner) loop(parent context.Context) (*Result, error) {
 		planImproved := false
 		if round == 1 || round%s.RepairEvery == 0 {
 			var err error
-			planImproved, err = r.repair(ctx, round, false)
-			if err != nil {
+			if planImproved, err = r.collectRepair(); err != nil {
 				return nil, err
 			}
+			r.launchRepair(ctx, round)
 		}
 		if improved || planImproved {
 			idle = 0
@@ -309,6 +310,13 @@ func (r *runner) loop(parent context.Context) (*Result, error) {
 		if s.Observer != nil {
 			s.Observer.Observe(&Progress{Record: rec, Prices: seen, Problem: p, HasPlan: r.plan != nil})
 		}
+	}
+	// The repair still running is merged first.
+	if _, err := r.collectRepair(); err != nil {
+		return nil, err
+	}
+	if r.closed() && status != ProvedInfeasible {
+		status = r.closedStatus()
 	}
 	// A last repair from the latest answers. After an interruption it gets
 	// a short detached deadline so that a plan is not lost.
@@ -390,21 +398,79 @@ func (r *runner) target() float64 {
 	return r.bound + est
 }
 
-func (r *runner) repair(ctx context.Context, round int, final bool) (bool, error) {
-	if r.p.Repair == nil {
-		return false, nil
-	}
+// repairInput snapshots what a repairer sees; with copy set it owns its
+// slices, so that the repair can run while the next rounds reuse them.
+func (r *runner) repairInput(round int, final, copyState bool) *RepairInput {
 	in := &RepairInput{
 		Round: round, Final: final, Sense: r.p.Sense, Prices: r.prices,
 		Answers: r.answers, Best: r.plan, Seed: mixSeed(r.s.Seed, uint64(round)),
 		Bound: r.bound, BoundPrices: r.bestPrices,
 	}
-	plan, err := r.p.Repair.Repair(ctx, in)
+	if copyState {
+		in.Prices = append([]float64(nil), r.prices...)
+		in.BoundPrices = append([]float64(nil), r.bestPrices...)
+		in.Answers = make([]Answer, len(r.answers))
+		for k, a := range r.answers {
+			in.Answers[k] = Answer{Value: a.Value, Cost: a.Cost,
+				Use: append([]Entry(nil), a.Use...), Primal: append([]Entry(nil), a.Primal...)}
+		}
+	}
+	return in
+}
+
+// repairOutcome is a finished repair waiting to be merged.
+type repairOutcome struct {
+	round     int
+	plan      *Plan
+	err       error
+	cancelled bool
+}
+
+// launchRepair starts a repair of this round's answers on its own
+// goroutine, so that it overlaps the next rounds' block evaluation. Its
+// plan is merged at the next repair round (or at the end), a fixed point
+// of the run, so the outcome does not depend on timing. Only one repair
+// runs at a time.
+func (r *runner) launchRepair(ctx context.Context, round int) {
+	if r.p.Repair == nil {
+		return
+	}
+	in := r.repairInput(round, false, true)
+	ch := make(chan repairOutcome, 1)
+	go func() {
+		plan, err := r.p.Repair.Repair(ctx, in)
+		ch <- repairOutcome{round: round, plan: plan, err: err, cancelled: ctx.Err() != nil}
+	}()
+	r.pending = ch
+}
+
+// collectRepair waits for the running repair, if any, and merges its plan.
+func (r *runner) collectRepair() (bool, error) {
+	if r.pending == nil {
+		return false, nil
+	}
+	o := <-r.pending
+	r.pending = nil
+	return r.accept(o)
+}
+
+// repair runs a repair now, on the calling goroutine.
+func (r *runner) repair(ctx context.Context, round int, final bool) (bool, error) {
+	if r.p.Repair == nil {
+		return false, nil
+	}
+	plan, err := r.p.Repair.Repair(ctx, r.repairInput(round, final, false))
+	return r.accept(repairOutcome{round: round, plan: plan, err: err, cancelled: ctx.Err() != nil})
+}
+
+// accept keeps a repaired plan when it is better than the best so far.
+func (r *runner) accept(o repairOutcome) (bool, error) {
+	plan, err := o.plan, o.err
 	if err != nil {
-		if ctx.Err() != nil {
+		if o.cancelled {
 			return false, nil
 		}
-		return false, fmt.Errorf("decomp: repair in round %d: %w", round, err)
+		return false, fmt.Errorf("decomp: repair in round %d: %w", o.round, err)
 	}
 	if plan == nil || math.IsNaN(plan.Value) {
 		return false, nil

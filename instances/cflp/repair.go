@@ -55,7 +55,13 @@ type repairer struct {
 	ss    *singleSource
 }
 
-func newRepairer(md *model) *repairer {
+func newRepairer(shared *model) *repairer {
+	// The repair may run while the blocks are evaluated, and its exact
+	// search changes site statuses for a while: it gets its own copy of
+	// the site list (the lanes themselves are read only and shared).
+	md := new(model)
+	*md = *shared
+	md.sites = slices.Clone(shared.sites)
 	in := md.in
 	m, n := len(in.Sites), len(in.Customers)
 	r := &repairer{md: md, unit: make([][]float64, m), sup: make([]float64, m),

@@ -256,7 +256,7 @@ func (r *repairer) improveSettings(final bool) heuristics.ImproveSettings {
 		if r.opt.FinalImprove != (heuristics.ImproveSettings{}) {
 			return r.opt.FinalImprove
 		}
-		return heuristics.ImproveSettings{Moves: 10*n + 2000}
+		return heuristics.ImproveSettings{Moves: 10*n + 20000}
 	}
 	if r.opt.Improve != (heuristics.ImproveSettings{}) {
 		return r.opt.Improve
