@@ -137,6 +137,11 @@ type RepairInput struct {
 // Repairer turns block answers into a feasible plan. It returns nil (and no
 // error) when it finds none. It must stop promptly when ctx is cancelled,
 // returning the best plan it has.
+//
+// The engine runs in-round repairs on their own goroutine, overlapping the
+// next rounds' block evaluation (the input is a private copy), and merges
+// the plan at the next repair round. A repairer must therefore share no
+// mutable state with the blocks. The engine never runs two repairs at once.
 type Repairer interface {
 	Repair(ctx context.Context, in *RepairInput) (*Plan, error)
 }
