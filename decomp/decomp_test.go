@@ -279,3 +279,27 @@ func TestTimeLimit(t *testing.T) {
 		t.Fatalf("status %v", res.Status)
 	}
 }
+
+// TestRoundingNoiseIsNotASubgradient: uses 0.1 + 0.2 against a right-hand
+// side of 0.3 leave a subgradient of about 5.6e-17 (IEEE 754 rounding,
+// common knowledge). Stepping along it would divide by its square and throw
+// the price to about 1e33, where the relaxed value is meaningless; the
+// engine must treat it as zero and stop with the exact value.
+func TestRoundingNoiseIsNotASubgradient(t *testing.T) {
+	row := []decomp.Row{{Name: "shared", Sense: decomp.Equal, RHS: 0.3}}
+	a := &subproblem.Choice{Options: []subproblem.Option{{Cost: 5, Use: []decomp.Entry{{Index: 0, Value: 0.1}}}}}
+	b := &subproblem.Choice{Options: []subproblem.Option{{Cost: 7, Use: []decomp.Entry{{Index: 0, Value: 0.2}}}}}
+	p := &decomp.Problem{Sense: decomp.Minimise, Rows: row, Blocks: []decomp.Block{a, b}}
+	res, err := decomp.Solve(context.Background(), p, decomp.Settings{Rounds: 20, Gap: -1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, h := range res.History {
+		if math.Abs(h.Value-12) > 1e-9 {
+			t.Fatalf("round %d: L = %v, want 12", h.Round, h.Value)
+		}
+	}
+	if res.Status != decomp.PricesSettled {
+		t.Fatalf("status %v, want prices-settled", res.Status)
+	}
+}

@@ -203,6 +203,7 @@ type runner struct {
 	prices, bestPrices []float64
 	answers            []Answer
 	sub                []float64
+	scale              []float64 // per row: |rhs| + Σ |use|, the size of its rounding noise
 	bound              float64
 	hasBound           bool
 	plan               *Plan
@@ -305,6 +306,14 @@ func (r *runner) loop(parent context.Context) (*Result, error) {
 			}
 			rec.Step = s.Method.Update(st, r.prices)
 			Project(p.Sense, p.Rows, r.prices)
+			for _, v := range r.prices {
+				if math.IsNaN(v) || math.IsInf(v, 0) {
+					// A method that lost its footing restarts from the
+					// prices of the best bound.
+					copy(r.prices, r.bestPrices)
+					break
+				}
+			}
 		}
 		r.history = append(r.history, rec)
 		if s.Observer != nil {
@@ -352,8 +361,12 @@ func (r *runner) stopReason(parent context.Context) Status {
 // reduce sums block values and uses in block order and fills r.sub with
 // the (unprojected) subgradient; it returns L at the current prices.
 func (r *runner) reduce() float64 {
+	if len(r.scale) != len(r.sub) {
+		r.scale = make([]float64, len(r.sub))
+	}
 	for i := range r.sub {
 		r.sub[i] = -r.p.Rows[i].RHS
+		r.scale[i] = math.Abs(r.p.Rows[i].RHS)
 	}
 	value := 0.0
 	for k := range r.answers {
@@ -361,6 +374,7 @@ func (r *runner) reduce() float64 {
 		value += a.Value
 		for _, e := range a.Use {
 			r.sub[e.Index] += e.Value
+			r.scale[e.Index] += math.Abs(e.Value)
 		}
 	}
 	for i, row := range r.p.Rows {
@@ -380,6 +394,12 @@ func (r *runner) project() float64 {
 	for i, row := range r.p.Rows {
 		sign := PriceSign(r.p.Sense, row.Sense)
 		if sign != 0 && r.prices[i] == 0 && float64(sign)*dir*r.sub[i] < 0 {
+			r.sub[i] = 0
+		}
+		// A component at the level of rounding noise is zero: stepping
+		// along it would divide by a vanishing norm and throw the prices
+		// to absurd values, where the relaxed value loses its precision.
+		if math.Abs(r.sub[i]) <= 1e-9*math.Max(1, r.scale[i]) {
 			r.sub[i] = 0
 		}
 		norm2 += r.sub[i] * r.sub[i]
