@@ -240,9 +240,6 @@ func newRepairer(in *Instance, opt Options) *repairer {
 	return &repairer{in: in, opt: opt, model: m}
 }
 
-// finalPasses bounds the local-search passes of the last repair.
-const finalPasses = 12
-
 // searchEvery makes every so many in-round repairs run the tabu search
 // too (the others only descend).
 const searchEvery = 8
@@ -256,7 +253,7 @@ func (r *repairer) improveSettings(final bool) heuristics.ImproveSettings {
 		if r.opt.FinalImprove != (heuristics.ImproveSettings{}) {
 			return r.opt.FinalImprove
 		}
-		return heuristics.ImproveSettings{Moves: 10*n + 20000}
+		return heuristics.ImproveSettings{Moves: 10*n + 2000}
 	}
 	if r.opt.Improve != (heuristics.ImproveSettings{}) {
 		return r.opt.Improve
@@ -343,9 +340,11 @@ func (r *repairer) Repair(ctx context.Context, rin *decomp.RepairInput) (*decomp
 	assign, value := r.searcher.Improve(ctx, assign, settings, rng)
 	if rin.Final {
 		// More passes while they pay off (each from the best so far, with
-		// fresh random choices); three fruitless passes in a row end it.
-		idle := 0
-		for pass := 1; pass < finalPasses && idle < 3 && ctx.Err() == nil; pass++ {
+		// fresh random choices). Small instances, whose passes are cheap,
+		// get more patience: 1000/n fruitless passes in a row (at least 3)
+		// end it.
+		idle, patience := 0, max(3, 1000/max(in.Jobs, 1))
+		for pass := 1; pass < 2*patience && idle < patience && ctx.Err() == nil; pass++ {
 			next, v := r.searcher.Improve(ctx, assign, settings, rng)
 			if rin.Sense.Better(v, value) {
 				assign, value, idle = next, v, 0
