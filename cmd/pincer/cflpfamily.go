@@ -75,9 +75,6 @@ type cflpModel struct {
 	in   *cflp.Instance
 	opt  cflp.Options
 	note string // why the relaxation differs from the one asked for
-	// unit and money name the demand unit and currency in summaries (the
-	// demo sets them); empty means "unit" and none.
-	unit, money string
 }
 
 func (m *cflpModel) name() string { return m.in.Name }
@@ -204,10 +201,6 @@ func (m *cflpModel) extra(res *decomp.Result) map[string]any {
 // capacity would save, per unit of demand.
 func (m *cflpModel) resources(res *decomp.Result) []resourceLine {
 	var out []resourceLine
-	unit := m.unit
-	if unit == "" {
-		unit = "unit"
-	}
 	for _, s := range m.siteList(res) {
 		if !s.Open {
 			continue
@@ -217,7 +210,7 @@ func (m *cflpModel) resources(res *decomp.Result) []resourceLine {
 			name = s.Name
 		}
 		out = append(out, resourceLine{name: name, capacity: s.Capacity, load: s.Load, price: s.CapacityPrice,
-			binding: s.Load >= s.Capacity*(1-1e-9), unit: unit, money: m.money})
+			binding: s.Load >= s.Capacity*(1-1e-9)})
 	}
 	sortResources(out)
 	return out

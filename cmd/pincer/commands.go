@@ -45,7 +45,7 @@ func newVerifyCmd() *cobra.Command {
 			return &exitError{code: exitNoPlan, err: fmt.Errorf("plan %s is infeasible (%d problems)", args[1], len(v.problems))}
 		},
 	}
-	cmd.Flags().StringVar(&format, "format", "", "input format: gap-orlib, cflp-orlib or cflp-csv")
+	cmd.Flags().StringVar(&format, "format", "", formatHelp())
 	cmd.Flags().IntVar(&o.index, "index", 0, "instance number or capacity variant (default 1)")
 	cmd.Flags().StringVar(&o.sense, "sense", "", "objective sense: min or max (default min)")
 	cmd.Flags().BoolVar(&o.singleSource, "single-source", false, "facility location: require one site per customer")
@@ -91,7 +91,7 @@ func newExportCmd() *cobra.Command {
 			return nil
 		},
 	}
-	mps.Flags().StringVar(&format, "format", "", "input format: gap-orlib, cflp-orlib or cflp-csv")
+	mps.Flags().StringVar(&format, "format", "", formatHelp())
 	mps.Flags().IntVar(&o.index, "index", 0, "instance number or capacity variant (default 1)")
 	mps.Flags().StringVar(&o.sense, "sense", "", "objective sense: min or max (default min)")
 	mps.Flags().BoolVar(&o.singleSource, "single-source", false, "facility location: single-source variant")

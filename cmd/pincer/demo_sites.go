@@ -86,7 +86,7 @@ func runSitesDemo(ctx context.Context, stdout, stderr io.Writer, f *runFlags) er
 	if err := in.Validate(); err != nil {
 		return &exitError{code: exitInternal, err: err}
 	}
-	m := &cflpModel{in: in, opt: cflp.Options{SingleSource: f.model.singleSource}, unit: "pallet", money: "$"}
+	m := &cflpModel{in: in, opt: cflp.Options{SingleSource: f.model.singleSource}}
 	fmt.Fprintf(stdout, "Marrowby Provisions (an invented wholesaler) can run any of %d warehouses\n", len(in.Sites))
 	fmt.Fprintf(stdout, "to supply %d shops (%.0f pallets a week); which should it run, at least weekly cost?\n\n",
 		len(in.Customers), in.TotalDemand())

@@ -49,12 +49,11 @@ type model interface {
 
 // resourceLine is one shared resource in the stdout summary.
 type resourceLine struct {
-	name        string
-	capacity    float64
-	load        float64
-	price       float64 // value of one more unit
-	binding     bool
-	unit, money string
+	name     string
+	capacity float64
+	load     float64
+	price    float64 // value of one more unit
+	binding  bool
 }
 
 // verdict is the outcome of pincer verify.
@@ -66,6 +65,16 @@ type verdict struct {
 
 func families() []family {
 	return []family{gapFamily(), cflpORLibFamily(), cflpCSVFamily()}
+}
+
+// formatHelp is the --format flag's help text, one line per family.
+func formatHelp() string {
+	var b strings.Builder
+	b.WriteString("input format, one of:")
+	for _, f := range families() {
+		fmt.Fprintf(&b, "\n  %s: %s", f.format, f.about)
+	}
+	return b.String()
 }
 
 func findFamily(format string) (family, error) {

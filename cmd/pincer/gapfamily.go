@@ -122,7 +122,7 @@ func (m *gapModel) resources(res *decomp.Result) []resourceLine {
 	for _, r := range m.resourceList(res) {
 		out = append(out, resourceLine{
 			name: m.agentName(r.Agent), capacity: float64(r.Capacity), load: float64(r.Load),
-			price: r.Price, binding: r.Binding, unit: "unit",
+			price: r.Price, binding: r.Binding,
 		})
 	}
 	sortResources(out)

@@ -38,7 +38,7 @@ type runFlags struct {
 func (f *runFlags) register(cmd *cobra.Command, withFormat bool) {
 	fl := cmd.Flags()
 	if withFormat {
-		fl.StringVar(&f.format, "format", "", "input format: gap-orlib, cflp-orlib or cflp-csv")
+		fl.StringVar(&f.format, "format", "", formatHelp())
 		fl.IntVar(&f.model.index, "index", 0, "instance number in a multi-instance file, or capacity variant for capa/capb/capc (default 1)")
 		fl.StringVar(&f.model.sense, "sense", "", "objective sense: min or max (default min)")
 		fl.StringVar(&f.model.relax, "relax", "", "which rows to price: gap-orlib knapsack|choice; cflp site|site-aggregate (default: the strongest)")
