@@ -90,23 +90,16 @@ func NewProblem(in *Instance, opt Options) (*decomp.Problem, error) {
 		p.Blocks = make([]decomp.Block, in.Jobs)
 		for j := range p.Blocks {
 			c := &subproblem.Choice{}
-			idx := make([]int, 0, in.Agents)
-			for i := 0; i < in.Agents; i++ {
-				// A job whose use exceeds an agent's whole capacity can
-				// never go there; leaving the option out keeps the bound
-				// valid and makes it stronger.
-				if in.Use[i][j] <= in.Capacity[i] {
-					c.Options = append(c.Options, subproblem.Option{
-						Cost: float64(in.Cost[i][j]),
-						Use:  []decomp.Entry{{Index: i, Value: float64(in.Use[i][j])}},
-					})
-					idx = append(idx, i)
-				}
+			for _, i := range jobAgents(in, j) {
+				c.Options = append(c.Options, subproblem.Option{
+					Cost: float64(in.Cost[i][j]),
+					Use:  []decomp.Entry{{Index: i, Value: float64(in.Use[i][j])}},
+				})
 			}
 			if len(c.Options) == 0 {
 				return nil, fmt.Errorf("gap: instance %q: job %d fits no agent (its use exceeds every capacity)", in.Name, j+1)
 			}
-			p.Blocks[j] = &jobBlock{Choice: c, agents: idx}
+			p.Blocks[j] = c
 		}
 	default:
 		return nil, fmt.Errorf("gap: unknown relaxation %d", opt.Relaxation)
@@ -191,12 +184,6 @@ func (b *agentBlock) Solve(_ context.Context, req *decomp.Request, ans *decomp.A
 		}
 	}
 	return nil
-}
-
-// jobBlock is job j choosing its agent; agents maps option to agent.
-type jobBlock struct {
-	*subproblem.Choice
-	agents []int
 }
 
 // repairer turns block answers into an assignment with the shared
@@ -364,7 +351,10 @@ func (r *repairer) Repair(ctx context.Context, rin *decomp.RepairInput) (*decomp
 }
 
 // jobAgents lists, in option order, the agents job j may go to in the
-// choice relaxation (see NewProblem).
+// choice relaxation. A job whose use exceeds an agent's whole capacity can
+// never go there; leaving that option out keeps the bound valid and makes
+// it stronger. The repair maps a job block's chosen option back to its
+// agent with the same list.
 func jobAgents(in *Instance, j int) []int {
 	idx := make([]int, 0, in.Agents)
 	for i := 0; i < in.Agents; i++ {
