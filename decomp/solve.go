@@ -92,8 +92,9 @@ type Settings struct {
 type Progress struct {
 	Record RoundRecord
 	// Prices are the prices at which this round's L was computed (the
-	// method has already moved r.prices on, so this is a copy kept only
-	// when an observer is set).
+	// method has already moved on, so this is a copy kept only when an
+	// observer is set). The engine reuses it: it is valid only during
+	// Observe.
 	Prices  []float64
 	Problem *Problem
 	HasPlan bool
@@ -209,6 +210,7 @@ type runner struct {
 	plan               *Plan
 	planProved         bool
 	pending            chan repairOutcome // the repair running, if any
+	seen               []float64          // this round's prices, for the observer
 	history            []RoundRecord
 }
 
@@ -278,9 +280,8 @@ func (r *runner) loop(parent context.Context) (*Result, error) {
 		} else {
 			idle++
 		}
-		var seen []float64
 		if s.Observer != nil {
-			seen = append(seen, r.prices...)
+			r.seen = append(r.seen[:0], r.prices...)
 		}
 		norm := r.project()
 		rec := RoundRecord{Round: round, Elapsed: time.Since(r.start), Value: value, Bound: r.bound, PlanValue: math.NaN()}
@@ -317,7 +318,7 @@ func (r *runner) loop(parent context.Context) (*Result, error) {
 		}
 		r.history = append(r.history, rec)
 		if s.Observer != nil {
-			s.Observer.Observe(&Progress{Record: rec, Prices: seen, Problem: p, HasPlan: r.plan != nil})
+			s.Observer.Observe(&Progress{Record: rec, Prices: r.seen, Problem: p, HasPlan: r.plan != nil})
 		}
 	}
 	// The repair still running is merged first.
