@@ -40,8 +40,10 @@ func (p Pool) Evaluate(ctx context.Context, blocks []Block, req *Request, answer
 	}
 	n := len(blocks)
 	if workers == 1 || n <= 1 {
+		own := *req
+		own.Workers = max(1, workers/max(1, n))
 		for k := range blocks {
-			if err := solveOne(ctx, blocks, k, req, answers); err != nil {
+			if err := solveOne(ctx, blocks, k, &own, answers); err != nil {
 				return err
 			}
 		}
@@ -59,8 +61,10 @@ func (p Pool) Evaluate(ctx context.Context, blocks []Block, req *Request, answer
 	for lo := 0; lo < n; lo += chunk {
 		hi := min(lo+chunk, n)
 		g.Go(func() error {
+			own := *req
+			own.Workers = max(1, workers/n)
 			for k := lo; k < hi; k++ {
-				if err := solveOne(gctx, blocks, k, req, answers); err != nil {
+				if err := solveOne(gctx, blocks, k, &own, answers); err != nil {
 					return err
 				}
 			}
@@ -74,6 +78,7 @@ func solveOne(ctx context.Context, blocks []Block, k int, req *Request, answers 
 	if err := ctx.Err(); err != nil {
 		return err
 	}
+	req.Block = k
 	if err := blocks[k].Solve(ctx, req, &answers[k]); err != nil {
 		return fmt.Errorf("block %d: %w", k, err)
 	}

@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"sort"
 )
 
 // Sense is the direction of optimisation.
@@ -71,9 +72,79 @@ type Entry struct {
 // Request is what a block is asked to solve in one round: its exact optimum
 // of own cost plus priced use of the coupling rows, in the given sense.
 // Blocks must not modify it.
+//
+// One Request serves every block of a round; Block tells the block which
+// one it is, so that it can find its own fixings. An evaluator that ships
+// work elsewhere sends the shared fields once and the block index per task.
 type Request struct {
 	Sense  Sense
 	Prices []float64 // one per coupling row, indexed like Problem.Rows
+	// Block is the stable identity of the block being asked: its index in
+	// Problem.Blocks. The evaluator sets it.
+	Block int
+	// Workers is how many goroutines the block may use inside Solve (at
+	// least 1); the evaluator sets it from its own budget, so that the
+	// whole run draws on one worker count.
+	Workers int
+	// Fixings are the variable fixings of every block, sorted by block and
+	// then by variable (see SortFixings). A block must return the exact
+	// optimum over the points that honour its fixings, or an error wrapping
+	// ErrInfeasible when none does.
+	Fixings []Fixing
+}
+
+// Fixing fixes one of a block's own variables (numbered as in
+// Answer.Primal) to a value.
+type Fixing struct {
+	Block int
+	Var   int
+	Value float64
+}
+
+// ErrInfeasible is wrapped by a block's error when no point of the block
+// honours its fixings. The engine then knows the relaxation, and so the
+// problem under those fixings, has no feasible point.
+var ErrInfeasible = errors.New("no feasible point under the fixings")
+
+// SortFixings sorts fixings by block, then variable, the order Request
+// needs. It returns an error when a variable is fixed twice to different
+// values.
+func SortFixings(f []Fixing) error {
+	sort.Slice(f, func(a, b int) bool {
+		if f[a].Block != f[b].Block {
+			return f[a].Block < f[b].Block
+		}
+		return f[a].Var < f[b].Var
+	})
+	for i := 1; i < len(f); i++ {
+		if f[i].Block == f[i-1].Block && f[i].Var == f[i-1].Var && f[i].Value != f[i-1].Value {
+			return fmt.Errorf("decomp: block %d variable %d fixed to both %v and %v", f[i].Block, f[i].Var, f[i-1].Value, f[i].Value)
+		}
+	}
+	return nil
+}
+
+// Fixed returns the fixings of the block being asked (Request.Block),
+// sorted by variable; nil when it has none.
+func (r *Request) Fixed() []Fixing {
+	return FixingsOf(r.Fixings, r.Block)
+}
+
+// FixingsOf returns the fixings of block k from fixings sorted by
+// SortFixings.
+func FixingsOf(fixings []Fixing, k int) []Fixing {
+	if len(fixings) == 0 {
+		return nil
+	}
+	lo := sort.Search(len(fixings), func(i int) bool { return fixings[i].Block >= k })
+	hi := lo
+	for hi < len(fixings) && fixings[hi].Block == k {
+		hi++
+	}
+	if lo == hi {
+		return nil
+	}
+	return fixings[lo:hi:hi]
 }
 
 // Answer is a block's exact optimum at the requested prices.
