@@ -29,7 +29,8 @@ const (
 //     shipped on the lane. The instance's cost of serving a customer's whole
 //     demand is unit_cost × demand. A pair without a row is not allowed.
 //
-// Errors are of type *ParseError, with the 1-based line and field number:
+// Errors are of type *ParseError, with the 1-based line, byte column and
+// field number (Token):
 // malformed CSV, a missing column, empty, duplicate or unknown ids, missing,
 // negative or non-numeric numbers, bad status words, repeated lanes, a
 // customer with no lane from a site that is not forced closed, and a total
@@ -164,7 +165,7 @@ func readScenario(sites, customers, lanes io.Reader) (*Instance, error) {
 			}
 		}
 		if !ok {
-			return nil, &ParseError{File: CustomersFile, Line: custLine[c.ID], Column: idCol,
+			return nil, &ParseError{File: CustomersFile, Line: custLine[c.ID], Token: idCol,
 				Expected: "customer " + c.ID + " to have a lane in " + LanesFile + " from a site that is not forced closed",
 				Err:      errors.New("no such lane")}
 		}
@@ -181,7 +182,7 @@ func readScenario(sites, customers, lanes io.Reader) (*Instance, error) {
 				break
 			}
 		}
-		return nil, &ParseError{File: CustomersFile, Line: custLine[at.ID], Column: demandCol,
+		return nil, &ParseError{File: CustomersFile, Line: custLine[at.ID], Token: demandCol,
 			Expected: "total demand within the total capacity of the sites that are not forced closed",
 			Err: fmt.Errorf("total demand %s exceeds total capacity %s by %s (the running total passes the capacity at customer %s)",
 				formatNumber(demand), formatNumber(capacity), formatNumber(demand-capacity), at.ID)}
@@ -198,6 +199,7 @@ type csvRow struct {
 	line   int
 	col    map[string]int // column name → 0-based field index
 	fields []string
+	bytes  []int // 1-based byte column of each field
 }
 
 // text returns the trimmed field of the named column, or "" when the column
@@ -211,7 +213,12 @@ func (r *csvRow) text(name string) string {
 }
 
 func (r *csvRow) errorf(name, expected, format string, args ...any) *ParseError {
-	return &ParseError{File: r.file, Line: r.line, Column: r.col[name] + 1, Expected: expected, Err: fmt.Errorf(format, args...)}
+	k := r.col[name]
+	col := 0
+	if k < len(r.bytes) {
+		col = r.bytes[k]
+	}
+	return &ParseError{File: r.file, Line: r.line, Column: col, Token: k + 1, Expected: expected, Err: fmt.Errorf(format, args...)}
 }
 
 // id returns a non-empty id not seen before in this file.
@@ -269,7 +276,8 @@ func readTable(r io.Reader, file string, required []string, row func(*csvRow) er
 			continue
 		}
 		if prev, dup := cols[h]; dup {
-			return &ParseError{File: file, Line: line, Column: k + 1, Expected: "each column named once",
+			_, c := cr.FieldPos(k)
+			return &ParseError{File: file, Line: line, Column: c, Token: k + 1, Expected: "each column named once",
 				Err: fmt.Errorf("column %q is also column %d", h, prev+1)}
 		}
 		cols[h] = k
@@ -289,7 +297,10 @@ func readTable(r io.Reader, file string, required []string, row func(*csvRow) er
 			return csvError(file, err)
 		}
 		l, _ := cr.FieldPos(0)
-		rr := &csvRow{file: file, line: l, col: cols, fields: rec}
+		rr := &csvRow{file: file, line: l, col: cols, fields: rec, bytes: make([]int, len(rec))}
+		for k := range rec {
+			_, rr.bytes[k] = cr.FieldPos(k)
+		}
 		for _, name := range required {
 			if k := cols[name]; k >= len(rec) {
 				return rr.errorf(name, name+" (field "+fmt.Sprint(k+1)+")",
@@ -307,8 +318,7 @@ func readTable(r io.Reader, file string, required []string, row func(*csvRow) er
 func csvError(file string, err error) error {
 	var pe *csv.ParseError
 	if errors.As(err, &pe) {
-		return &ParseError{File: file, Line: pe.Line, Expected: "a well-formed CSV record",
-			Err: fmt.Errorf("byte %d: %w", pe.Column, pe.Err)}
+		return &ParseError{File: file, Line: pe.Line, Column: pe.Column, Expected: "a well-formed CSV record", Err: pe.Err}
 	}
 	return &ParseError{File: file, Expected: "a readable CSV file", Err: err}
 }

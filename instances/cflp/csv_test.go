@@ -148,8 +148,8 @@ func TestReadScenarioErrors(t *testing.T) {
 			if !errors.As(err, &pe) {
 				t.Fatalf("got %v, want a *ParseError", err)
 			}
-			if pe.File != c.file || pe.Line != c.line || pe.Column != c.col || !strings.Contains(err.Error(), c.want) {
-				t.Errorf("got %q at %s:%d:%d, want %s:%d:%d and %q", err, pe.File, pe.Line, pe.Column, c.file, c.line, c.col, c.want)
+			if pe.File != c.file || pe.Line != c.line || pe.Token != c.col || !strings.Contains(err.Error(), c.want) {
+				t.Errorf("got %q at %s:%d:%d, want %s:%d:%d and %q", err, pe.File, pe.Line, pe.Token, c.file, c.line, c.col, c.want)
 			}
 		})
 	}

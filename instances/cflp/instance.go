@@ -1,6 +1,8 @@
 package cflp
 
 import (
+	"pincer/instances"
+
 	"errors"
 	"fmt"
 	"math"
@@ -162,31 +164,8 @@ func (in *Instance) Validate() error {
 
 func finiteNonNeg(v float64) bool { return v >= 0 && !math.IsInf(v, 1) }
 
-// ParseError reports a problem in an input file. Line and Column are 1-based;
-// Column is a byte position in whitespace-separated files and a field number
-// in CSV files, and either is 0 when it does not apply.
-type ParseError struct {
-	File     string
-	Line     int
-	Column   int
-	Expected string // what the reader was looking for
-	Err      error  // what it found instead
-}
-
-// Error formats the error as "file:line:column: expected ...: ...".
-func (e *ParseError) Error() string {
-	pos := e.File
-	if e.Line > 0 {
-		pos += ":" + strconv.Itoa(e.Line)
-		if e.Column > 0 {
-			pos += ":" + strconv.Itoa(e.Column)
-		}
-	}
-	return fmt.Sprintf("%s: expected %s: %v", pos, e.Expected, e.Err)
-}
-
-// Unwrap returns the underlying error.
-func (e *ParseError) Unwrap() error { return e.Err }
+// ParseError is the shared reader fault shape, [instances.ParseError].
+type ParseError = instances.ParseError
 
 // formatNumber writes v in plain decimal notation with the fewest digits
 // that read back to the same float64.

@@ -73,7 +73,7 @@ func TestReadPlanCSVErrors(t *testing.T) {
 	for _, c := range cases {
 		_, err := ReadPlanCSV(strings.NewReader(c.src), "plan.csv", tiny())
 		var pe *ParseError
-		if !errors.As(err, &pe) || pe.File != "plan.csv" || pe.Line != c.line || pe.Column != c.col || !strings.Contains(err.Error(), c.want) {
+		if !errors.As(err, &pe) || pe.File != "plan.csv" || pe.Line != c.line || pe.Token != c.col || !strings.Contains(err.Error(), c.want) {
 			t.Errorf("%s: got %v, want plan.csv:%d:%d and %q", c.name, err, c.line, c.col, c.want)
 		}
 	}

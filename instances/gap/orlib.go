@@ -1,6 +1,8 @@
 package gap
 
 import (
+	"pincer/instances"
+
 	"bufio"
 	"bytes"
 	"fmt"
@@ -8,45 +10,14 @@ import (
 	"os"
 	"path/filepath"
 	"strconv"
-	"strings"
 )
 
-// ParseError reports a fault in an instance or plan file. It names the
-// file, the 1-based line and byte column, the 1-based token number (for plan
-// files: the field number within the record; 0 when no single token is at
-// fault) and what was expected there. Err says what was found instead and
-// may wrap io.ErrUnexpectedEOF, strconv.ErrSyntax or strconv.ErrRange.
-type ParseError struct {
-	File     string
-	Line     int
-	Column   int
-	Token    int
-	Expected string
-	Err      error
-}
-
-// Error formats the fault as "file:line:column: token N: expected X: got Y".
-func (e *ParseError) Error() string {
-	var b strings.Builder
-	file := e.File
-	if file == "" {
-		file = "<input>"
-	}
-	fmt.Fprintf(&b, "%s:%d:%d: ", file, e.Line, e.Column)
-	if e.Token > 0 {
-		fmt.Fprintf(&b, "token %d: ", e.Token)
-	}
-	b.WriteString("expected ")
-	b.WriteString(e.Expected)
-	if e.Err != nil {
-		b.WriteString(": ")
-		b.WriteString(e.Err.Error())
-	}
-	return b.String()
-}
-
-// Unwrap returns the underlying cause.
-func (e *ParseError) Unwrap() error { return e.Err }
+// ParseError is the shared reader fault shape, [instances.ParseError]: file,
+// 1-based line and byte column, the 1-based token number (for plan files the
+// field number within the record; 0 when no single token is at fault) and
+// what was expected there. Err says what was found instead and may wrap
+// io.ErrUnexpectedEOF, strconv.ErrSyntax or strconv.ErrRange.
+type ParseError = instances.ParseError
 
 // gotError says what was found where something else was expected.
 type gotError struct {
