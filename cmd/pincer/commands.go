@@ -8,76 +8,81 @@ import (
 
 	"github.com/spf13/cobra"
 
-	"pincer/instances/gap"
+	"pincer/instances"
 )
 
-func newVerifyCmd() *cobra.Command {
+func newVerifyCmd(chosen string) *cobra.Command {
 	var format string
-	var o modelOptions
+	var opts *optionSet
 	cmd := &cobra.Command{
 		Use:   "verify --format FORMAT [--index K] FILE PLAN",
 		Short: "Recompute a plan's value and check its feasibility independently of the solver",
 		Args:  cobra.ExactArgs(2),
 		RunE: func(cmd *cobra.Command, args []string) error {
-			fam, err := findFamily(format)
+			m, err := load(format, args[0], opts)
 			if err != nil {
 				return err
 			}
-			m, err := fam.load(args[0], o)
-			if err != nil {
-				return err
+			vf, ok := m.(instances.Verifier)
+			if !ok {
+				return badInput(fmt.Errorf("--format %s cannot verify plans", format))
 			}
-			v, err := m.verify(args[1])
+			f, err := os.Open(args[1])
 			if err != nil {
-				return err
+				return badInput(err)
+			}
+			defer f.Close()
+			v, err := vf.Verify(f, args[1])
+			if err != nil {
+				return badInput(err)
 			}
 			out := cmd.OutOrStdout()
-			fmt.Fprintf(out, "instance  %s (%s)\n", m.name(), m.size())
-			fmt.Fprintf(out, "value     %s\n", fmtNum(v.value))
-			if v.feasible {
+			fmt.Fprintf(out, "instance  %s (%s)\n", m.Name(), m.Size())
+			fmt.Fprintf(out, "value     %s\n", fmtNum(v.Value))
+			if v.Feasible {
 				fmt.Fprintf(out, "feasible  yes\n")
 				return nil
 			}
 			fmt.Fprintf(out, "feasible  no\n")
-			for _, p := range v.problems {
+			for _, p := range v.Problems {
 				fmt.Fprintf(out, "  %s\n", p)
 			}
-			return &exitError{code: exitNoPlan, err: fmt.Errorf("plan %s is infeasible (%d problems)", args[1], len(v.problems))}
+			return &exitError{code: exitNoPlan, err: fmt.Errorf("plan %s is infeasible (%d problems)", args[1], len(v.Problems))}
 		},
 	}
-	cmd.Flags().StringVar(&format, "format", "", formatHelp())
-	cmd.Flags().IntVar(&o.index, "index", 0, "instance number or capacity variant (default 1)")
-	cmd.Flags().StringVar(&o.sense, "sense", "", "objective sense: min or max (default min)")
-	cmd.Flags().BoolVar(&o.singleSource, "single-source", false, "facility location: require one site per customer")
+	opts = familyOptions(cmd, &format, chosen)
 	return cmd
 }
 
-func newExportCmd() *cobra.Command {
+func newExportCmd(chosen string) *cobra.Command {
 	export := &cobra.Command{Use: "export", Short: "Write a model in an open exchange format"}
 	var format, out string
-	var o modelOptions
+	var opts *optionSet
 	mps := &cobra.Command{
 		Use:   "mps --format FORMAT [--index K] FILE -o model.mps",
 		Short: "Write the full model as free MPS (for a general-purpose solver)",
 		Args:  cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			if out == "" {
-				return badInput(errors.New("-o is required"))
+				return badInput(errors.New("-o is required (a file, or - for standard output)"))
 			}
-			fam, err := findFamily(format)
+			if err := checkWritable("-o", out); err != nil {
+				return err
+			}
+			m, err := load(format, args[0], opts)
 			if err != nil {
 				return err
 			}
-			m, err := fam.load(args[0], o)
-			if err != nil {
-				return err
+			ex, ok := m.(instances.MPSExporter)
+			if !ok {
+				return badInput(fmt.Errorf("--format %s cannot be exported as MPS", format))
 			}
-			f, err := os.Create(out)
+			f, err := createOutput(out, cmd.OutOrStdout())
 			if err != nil {
 				return badInput(err)
 			}
 			w := bufio.NewWriter(f)
-			if err := m.exportMPS(w); err != nil {
+			if err := ex.WriteMPS(w); err != nil {
 				f.Close()
 				return &exitError{code: exitInternal, err: err}
 			}
@@ -91,58 +96,66 @@ func newExportCmd() *cobra.Command {
 			return nil
 		},
 	}
-	mps.Flags().StringVar(&format, "format", "", formatHelp())
-	mps.Flags().IntVar(&o.index, "index", 0, "instance number or capacity variant (default 1)")
-	mps.Flags().StringVar(&o.sense, "sense", "", "objective sense: min or max (default min)")
-	mps.Flags().BoolVar(&o.singleSource, "single-source", false, "facility location: single-source variant")
-	mps.Flags().StringVarP(&out, "output", "o", "", "MPS file to write")
+	opts = familyOptions(mps, &format, chosen)
+	mps.Flags().StringVarP(&out, "output", "o", "", "MPS file to write (- for standard output)")
 	export.AddCommand(mps)
 	return export
 }
 
 func newGenCmd() *cobra.Command {
 	gen := &cobra.Command{Use: "gen", Short: "Generate instances following published recipes"}
-	var typ, out string
-	var agents, jobs int
-	var seed uint64
-	g := &cobra.Command{
-		Use:   "gap --type a|b|c|d|e --agents M --jobs N --seed S [-o FILE]",
-		Short: "Generalized assignment instance (Chu & Beasley 1997 types A-C; Laguna et al. 1995 type D; type E of Yagiura et al.)",
+	for _, f := range registry() {
+		g, ok := f.(instances.Generator)
+		if !ok {
+			continue
+		}
+		for _, r := range g.Recipes() {
+			gen.AddCommand(newRecipeCmd(r))
+		}
+	}
+	return gen
+}
+
+func newRecipeCmd(r instances.Recipe) *cobra.Command {
+	var out string
+	var force bool
+	opts := &optionSet{}
+	cmd := &cobra.Command{
+		Use:   r.Name + " " + r.Usage,
+		Short: r.Short,
 		Args:  cobra.NoArgs,
 		RunE: func(cmd *cobra.Command, args []string) error {
-			if len(typ) != 1 {
-				return badInput(fmt.Errorf("--type must be one of a, b, c, d, e; got %q", typ))
+			var sink instances.Sink
+			if len(r.Files) > 0 {
+				if out == "" || out == stdoutPath {
+					return badInput(errors.New("-o DIR is required (the output is a folder)"))
+				}
+				if err := prepareFolder(out, r.Files, force); err != nil {
+					return err
+				}
+				sink = folderSink{out}
+			} else {
+				if err := checkWritable("-o", out); err != nil {
+					return err
+				}
+				sink = fileSink{path: out, stdout: cmd.OutOrStdout()}
 			}
-			in, err := gap.Generate(typ[0], agents, jobs, seed)
+			summary, err := r.Run(opts.values(), sink)
 			if err != nil {
 				return badInput(err)
 			}
-			w := cmd.OutOrStdout()
-			var f *os.File
-			if out != "" {
-				if f, err = os.Create(out); err != nil {
-					return badInput(err)
-				}
-				w = f
-			}
-			bw := bufio.NewWriter(w)
-			if err := gap.WriteORLib(bw, in); err != nil {
-				return &exitError{code: exitInternal, err: err}
-			}
-			if err := bw.Flush(); err != nil {
-				return &exitError{code: exitInternal, err: err}
-			}
-			if f != nil {
-				return f.Close()
+			if summary != "" {
+				fmt.Fprintf(cmd.OutOrStdout(), "wrote %s: %s\n", out, summary)
 			}
 			return nil
 		},
 	}
-	g.Flags().StringVar(&typ, "type", "c", "instance type: a, b, c, d or e")
-	g.Flags().IntVar(&agents, "agents", 10, "number of agents")
-	g.Flags().IntVar(&jobs, "jobs", 100, "number of jobs")
-	g.Flags().Uint64Var(&seed, "seed", 1, "random seed")
-	g.Flags().StringVarP(&out, "output", "o", "", "file to write (default stdout)")
-	gen.AddCommand(g, newGenCflpCmd())
-	return gen
+	opts.add(cmd, r.Options)
+	if len(r.Files) > 0 {
+		cmd.Flags().StringVarP(&out, "output", "o", "", "folder to write")
+		cmd.Flags().BoolVar(&force, "force", false, "write into a non-empty folder (only the generated files are replaced)")
+	} else {
+		cmd.Flags().StringVarP(&out, "output", "o", "", "file to write (default or -: standard output)")
+	}
+	return cmd
 }

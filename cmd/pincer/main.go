@@ -56,7 +56,7 @@ func main() {
 
 // run executes the command line and returns the exit code.
 func run(ctx context.Context, args []string, stdout, stderr io.Writer) int {
-	root := newRoot(stdout, stderr)
+	root := newRoot(stdout, stderr, formatArg(args))
 	root.SetArgs(args)
 	err := root.ExecuteContext(ctx)
 	if err == nil {
@@ -75,7 +75,9 @@ func run(ctx context.Context, args []string, stdout, stderr io.Writer) int {
 	return exitBadInput
 }
 
-func newRoot(stdout, stderr io.Writer) *cobra.Command {
+// newRoot builds the command tree; chosen is the --format given on the
+// command line (if any), whose family's options alone are registered.
+func newRoot(stdout, stderr io.Writer, chosen string) *cobra.Command {
 	root := &cobra.Command{
 		Use:   "pincer",
 		Short: "Lagrangian decomposition for large separable planning problems",
@@ -88,9 +90,12 @@ Plans are decision support: check them against site rules and local
 practice before use.`,
 		SilenceUsage:  true,
 		SilenceErrors: true,
+		Version:       versionString(),
 	}
+	root.SetVersionTemplate("pincer {{.Version}}\n")
+	root.SetFlagErrorFunc(flagHint)
 	root.SetOut(stdout)
 	root.SetErr(stderr)
-	root.AddCommand(newSolveCmd(), newVerifyCmd(), newExportCmd(), newGenCmd(), newDemoCmd())
+	root.AddCommand(newSolveCmd(chosen), newVerifyCmd(chosen), newExportCmd(chosen), newGenCmd(), newDemoCmd(), newVersionCmd())
 	return root
 }

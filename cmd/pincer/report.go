@@ -5,10 +5,10 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"os"
 	"strconv"
 
 	"pincer/decomp"
+	"pincer/instances"
 )
 
 // reportVersion is bumped whenever a key changes meaning or disappears.
@@ -28,13 +28,21 @@ func (n num) MarshalJSON() ([]byte, error) {
 	return strconv.AppendFloat(nil, f, 'g', -1, 64), nil
 }
 
+// rnum is a value computed from data: written without binary noise
+// (1862.9699999999998 -> 1862.97), null when NaN or infinite.
+type rnum float64
+
+func (n rnum) MarshalJSON() ([]byte, error) {
+	return num(instances.RoundNumber(float64(n))).MarshalJSON()
+}
+
 type rowJSON struct {
 	Name    string `json:"name"`
 	Sense   string `json:"sense"`
-	Price   num    `json:"price"`
-	Use     num    `json:"use"`
-	RHS     num    `json:"rhs"`
-	Slack   num    `json:"slack"`
+	Price   rnum   `json:"price"`
+	Use     rnum   `json:"use"`
+	RHS     rnum   `json:"rhs"`
+	Slack   rnum   `json:"slack"`
 	Binding bool   `json:"binding"`
 }
 
@@ -51,16 +59,19 @@ type historyJSON struct {
 // report is the JSON report; its keys are a contract documented in the
 // README.
 type report struct {
-	ReportVersion int            `json:"report_version"`
-	Format        string         `json:"format"`
-	File          string         `json:"file"`
-	Index         int            `json:"index"`
-	Instance      string         `json:"instance"`
-	Size          string         `json:"size"`
-	Sense         string         `json:"sense"`
-	PlanValue     *num           `json:"plan_value"`
-	Bound         num            `json:"bound"`
-	BoundKind     string         `json:"bound_kind"`
+	ReportVersion int    `json:"report_version"`
+	Format        string `json:"format"`
+	File          string `json:"file"`
+	Index         int    `json:"index"`
+	Instance      string `json:"instance"`
+	Size          string `json:"size"`
+	Sense         string `json:"sense"`
+	PlanValue     *rnum  `json:"plan_value"`
+	Bound         num    `json:"bound"`
+	BoundKind     string `json:"bound_kind"`
+	// RoundedBound is the bound rounded to the next integer toward the
+	// plan when the objective is integral (null otherwise).
+	RoundedBound  *num           `json:"rounded_bound"`
 	Gap           num            `json:"gap"`
 	ProvedOptimal bool           `json:"proved_optimal"`
 	Stop          string         `json:"stop"`
@@ -72,41 +83,108 @@ type report struct {
 	Rows          []rowJSON      `json:"rows"`
 	Family        map[string]any `json:"family"`
 	History       []historyJSON  `json:"history"`
-	Plan          any            `json:"plan"`
+	// HistoryKept says which rounds history holds: "full" or "summary"
+	// (every improvement plus a thinned trace).
+	HistoryKept string `json:"history_kept"`
+	Plan        any    `json:"plan"`
 }
 
-func buildReport(format, file string, index, workers int, seed uint64, m model, res *decomp.Result) *report {
+func buildReport(format, file string, index, workers int, seed uint64, full bool, m instances.Model, res *decomp.Result) (*report, error) {
+	extra, err := m.Extra(res)
+	if err != nil {
+		return nil, err
+	}
+	plan, err := m.PlanJSON(res.Plan)
+	if err != nil {
+		return nil, err
+	}
 	r := &report{
 		ReportVersion: reportVersion, Format: format, File: file, Index: index,
-		Instance: m.name(), Size: m.size(), Sense: m.sense().String(),
+		Instance: m.Name(), Size: m.Size(), Sense: m.Sense().String(),
 		Bound: num(res.Bound), Gap: num(res.Gap), ProvedOptimal: res.Proved,
 		Stop: res.Status.String(), Rounds: res.Rounds, Seconds: num(res.Elapsed.Seconds()),
-		Workers: workers, Seed: seed, Caution: caution, Family: m.extra(res),
-		Plan: m.planJSON(res.Plan),
+		Workers: workers, Seed: seed, Caution: caution, Family: extra, Plan: plan,
 	}
 	r.BoundKind = "lower"
-	if m.sense() == decomp.Maximise {
+	if m.Sense() == decomp.Maximise {
 		r.BoundKind = "upper"
 	}
 	if res.Plan != nil {
-		v := num(res.Plan.Value)
+		v := rnum(res.Plan.Value)
 		r.PlanValue = &v
 	}
 	r.Rows = make([]rowJSON, len(res.Rows))
 	for i, row := range res.Rows {
-		r.Rows[i] = rowJSON{Name: row.Name, Sense: row.Sense.String(), Price: num(row.Price), Use: num(row.Use),
-			RHS: num(row.RHS), Slack: num(row.Slack), Binding: row.Binding}
+		r.Rows[i] = rowJSON{Name: row.Name, Sense: row.Sense.String(), Price: rnum(row.Price), Use: rnum(row.Use),
+			RHS: rnum(row.RHS), Slack: rnum(row.Slack), Binding: row.Binding}
 	}
-	r.History = make([]historyJSON, len(res.History))
-	for i, h := range res.History {
+	hist := res.History
+	r.HistoryKept = "full"
+	if !full {
+		hist = thinHistory(hist, maxHistory)
+		r.HistoryKept = "summary"
+	}
+	r.History = make([]historyJSON, len(hist))
+	for i, h := range hist {
 		r.History[i] = historyJSON{Round: h.Round, Seconds: num(h.Elapsed.Seconds()), Value: num(h.Value),
 			Bound: num(h.Bound), PlanValue: num(h.PlanValue), Step: num(h.Step), Norm: num(h.Norm)}
+	}
+	return r, nil
+}
+
+// withRounded sets the report's rounded bound.
+func (r *report) withRounded(b float64, ok bool) *report {
+	if ok {
+		v := num(b)
+		r.RoundedBound = &v
 	}
 	return r
 }
 
-func writeJSONFile(path string, v any) error {
-	f, err := os.Create(path)
+// maxHistory bounds the summary history.
+const maxHistory = 2000
+
+// thinHistory keeps the first and last round, every round that improved
+// the bound or the plan, and evenly spaced rounds in between, at most about
+// limit rounds in all (improvements are always kept).
+func thinHistory(h []decomp.RoundRecord, limit int) []decomp.RoundRecord {
+	if len(h) <= limit {
+		return h
+	}
+	keep := make([]bool, len(h))
+	kept := 0
+	mark := func(k int) {
+		if !keep[k] {
+			keep[k] = true
+			kept++
+		}
+	}
+	mark(0)
+	mark(len(h) - 1)
+	for k := 1; k < len(h); k++ {
+		better := h[k].Bound != h[k-1].Bound ||
+			(h[k].PlanValue != h[k-1].PlanValue && !(math.IsNaN(h[k].PlanValue) && math.IsNaN(h[k-1].PlanValue)))
+		if better {
+			mark(k)
+		}
+	}
+	if room := limit - kept; room > 0 {
+		step := float64(len(h)) / float64(room)
+		for x := 0.0; int(x) < len(h); x += step {
+			mark(int(x))
+		}
+	}
+	out := make([]decomp.RoundRecord, 0, kept)
+	for k, ok := range keep {
+		if ok {
+			out = append(out, h[k])
+		}
+	}
+	return out
+}
+
+func writeJSON(path string, stdout io.Writer, v any) error {
+	f, err := createOutput(path, stdout)
 	if err != nil {
 		return fmt.Errorf("writing report: %w", err)
 	}
@@ -122,12 +200,20 @@ func writeJSONFile(path string, v any) error {
 	return nil
 }
 
-func writePlanFile(path string, m model, p *decomp.Plan) error {
-	f, err := os.Create(path)
+func writePlan(path string, stdout io.Writer, m instances.Model, p *decomp.Plan) error {
+	pw, ok := m.(instances.PlanWriter)
+	if !ok {
+		return fmt.Errorf("this format cannot write plan files")
+	}
+	f, err := createOutput(path, stdout)
 	if err != nil {
 		return fmt.Errorf("writing plan: %w", err)
 	}
-	if err := m.writePlan(f, p); err != nil {
+	var tables instances.Tables
+	if path != stdoutPath {
+		tables = sideTables{plan: path}
+	}
+	if err := pw.WritePlan(f, p, tables); err != nil {
 		f.Close()
 		return fmt.Errorf("writing plan %s: %w", path, err)
 	}
@@ -137,32 +223,58 @@ func writePlanFile(path string, m model, p *decomp.Plan) error {
 	return nil
 }
 
-// printSummary writes the short stdout summary.
-func printSummary(w io.Writer, m model, res *decomp.Result, top int) {
+// roundedBound is the bound rounded toward the plan for an integral
+// objective, and whether rounding changes it.
+func roundedBound(b float64, integral bool, sense decomp.Sense) (float64, bool) {
+	if !integral || math.IsInf(b, 0) || math.IsNaN(b) {
+		return b, false
+	}
+	tol := 1e-7 * math.Max(1, math.Abs(b))
+	r := math.Ceil(b - tol)
+	if sense == decomp.Maximise {
+		r = math.Floor(b + tol)
+	}
+	return r, r != b
+}
+
+// printSummary writes the short summary.
+func printSummary(w io.Writer, m instances.Model, integral bool, res *decomp.Result, top int) error {
 	kind := "lower"
-	if m.sense() == decomp.Maximise {
+	if m.Sense() == decomp.Maximise {
 		kind = "upper"
 	}
-	fmt.Fprintf(w, "instance    %s (%s, %s)\n", m.name(), m.size(), m.sense())
+	fmt.Fprintf(w, "instance    %s (%s, %s)\n", m.Name(), m.Size(), m.Sense())
 	if res.Plan != nil {
 		fmt.Fprintf(w, "plan value  %s\n", fmtNum(res.Plan.Value))
 	} else {
 		fmt.Fprintf(w, "plan value  none found\n")
 	}
-	fmt.Fprintf(w, "bound       %s (%s)\n", fmtNum(res.Bound), kind)
+	rb, rounds := roundedBound(res.Bound, integral, m.Sense())
+	if rounds {
+		fmt.Fprintf(w, "bound       %s, rounds to %s (%s; the objective takes whole values)\n", fmtNum(res.Bound), fmtNum(rb), kind)
+	} else {
+		fmt.Fprintf(w, "bound       %s (%s)\n", fmtNum(res.Bound), kind)
+	}
 	if math.IsInf(res.Gap, 0) {
 		fmt.Fprintf(w, "gap         unknown (no plan)\n")
 	} else {
-		fmt.Fprintf(w, "gap         %.4f %%\n", 100*res.Gap)
+		fmt.Fprintf(w, "gap         %s\n", fmtGap(res.Gap))
 	}
 	proved := "no"
 	if res.Proved {
 		proved = "yes"
+		if rounds && res.Plan != nil && res.Plan.Value == rb {
+			proved = "yes (the plan value meets the rounded bound: no plan with whole values can do better)"
+		}
 	}
 	fmt.Fprintf(w, "proved      %s\n", proved)
 	fmt.Fprintf(w, "stop        %s\n", res.Status)
 	fmt.Fprintf(w, "time        %.2f s, %d rounds\n", res.Elapsed.Seconds(), res.Rounds)
-	rs := m.resources(res)
+	rs, err := m.Resources(res)
+	if err != nil {
+		return err
+	}
+	sortResources(rs)
 	if len(rs) > 0 && top > 0 {
 		fmt.Fprintf(w, "most binding shared resources (price = value of one more unit):\n")
 		for k, r := range rs {
@@ -170,13 +282,22 @@ func printSummary(w io.Writer, m model, res *decomp.Result, top int) {
 				break
 			}
 			flag := ""
-			if r.binding {
+			if r.Binding {
 				flag = "  binding"
 			}
-			fmt.Fprintf(w, "  %-22s load %s of %s  price %s%s\n", r.name, fmtNum(r.load), fmtNum(r.capacity), fmtNum(r.price), flag)
+			fmt.Fprintf(w, "  %-22s load %s of %s  price %s%s\n", r.Name, fmtNum(r.Load), fmtNum(r.Capacity), fmtNum(r.Price), flag)
 		}
 	}
 	fmt.Fprintln(w, caution)
+	return nil
+}
+
+// fmtGap writes a gap fraction as a percent, the same way everywhere.
+func fmtGap(g float64) string {
+	if math.IsInf(g, 0) || math.IsNaN(g) {
+		return "-"
+	}
+	return fmt.Sprintf("%.4f %%", 100*g)
 }
 
 func fmtNum(f float64) string {

@@ -15,12 +15,13 @@ import (
 	"golang.org/x/term"
 
 	"pincer/decomp"
+	"pincer/instances"
 )
 
 // runFlags are shared by solve and demo.
 type runFlags struct {
 	format      string
-	model       modelOptions
+	opts        *optionSet
 	time        time.Duration
 	rounds      int
 	gap         float64
@@ -33,45 +34,80 @@ type runFlags struct {
 	top         int
 	repairEvery int
 	stall       int
+	history     string
 }
 
-func (f *runFlags) register(cmd *cobra.Command, withFormat bool) {
+func (f *runFlags) register(cmd *cobra.Command) {
 	fl := cmd.Flags()
-	if withFormat {
-		fl.StringVar(&f.format, "format", "", formatHelp())
-		fl.IntVar(&f.model.index, "index", 0, "instance number in a multi-instance file, or capacity variant for capa/capb/capc (default 1)")
-		fl.StringVar(&f.model.sense, "sense", "", "objective sense: min or max (default min)")
-		fl.StringVar(&f.model.relax, "relax", "", "which rows to price: gap-orlib knapsack|choice; cflp site|site-aggregate (default: the strongest)")
-		fl.BoolVar(&f.model.singleSource, "single-source", false, "facility location: each customer served by exactly one site")
-	}
-	fl.DurationVar(&f.time, "time", 10*time.Second, "wall-clock limit (0 for none)")
-	fl.IntVar(&f.rounds, "rounds", 0, "round limit (0 for none)")
-	fl.Float64Var(&f.gap, "gap", 1e-4, "stop when the relative gap between plan and bound is at most this")
-	fl.IntVar(&f.workers, "workers", runtime.NumCPU(), "goroutines evaluating blocks")
+	fl.DurationVar(&f.time, "time", 10*time.Second, "wall-clock limit (0 for none; at least 0)")
+	fl.IntVar(&f.rounds, "rounds", 0, "round limit (0 for none; at least 0)")
+	fl.Float64Var(&f.gap, "gap", 1e-4, "stop when the relative gap between plan and bound is at most this (a fraction, at least 0)")
+	fl.IntVar(&f.workers, "workers", runtime.NumCPU(), "goroutines evaluating blocks (at least 1)")
 	fl.Uint64Var(&f.seed, "seed", 1, "seed for the repair heuristics")
-	fl.StringVar(&f.report, "report", "", "write the JSON report to this file")
-	fl.StringVar(&f.plan, "plan", "", "write the best plan as CSV to this file")
+	fl.StringVar(&f.report, "report", "", "write the JSON report to this file (- for standard output)")
+	fl.StringVar(&f.plan, "plan", "", "write the best plan as CSV to this file (- for standard output)")
 	fl.BoolVar(&f.quiet, "quiet", false, "no progress on stderr")
 	fl.StringVar(&f.logFormat, "log-format", "text", "progress log format when stderr is not a terminal: text or json")
-	fl.IntVar(&f.top, "top", 5, "shared resources listed in the summary")
-	fl.IntVar(&f.repairEvery, "repair-every", 0, "repair every this many rounds (0: engine default)")
-	fl.IntVar(&f.stall, "stall", 0, "stop after this many rounds without a better bound or plan (0: engine default, 300)")
+	fl.IntVar(&f.top, "top", 5, "shared resources listed in the summary (at least 0)")
+	fl.IntVar(&f.repairEvery, "repair-every", 0, "repair every this many rounds (0: engine default; at least 0)")
+	fl.IntVar(&f.stall, "stall", 0, "stop after this many rounds without a better bound or plan (0: engine default, 300; at least 0)")
+	fl.StringVar(&f.history, "history", "summary", "report history: summary (every improvement plus a thinned trace, at most 2000 rounds) or full")
+	for name, vals := range map[string][]string{"log-format": {"text", "json"}, "history": {"summary", "full"}} {
+		vals := vals
+		_ = cmd.RegisterFlagCompletionFunc(name, func(*cobra.Command, []string, string) ([]string, cobra.ShellCompDirective) {
+			return vals, cobra.ShellCompDirectiveNoFileComp
+		})
+	}
 }
 
+// check validates the run flags and the output paths before any solving.
 func (f *runFlags) check() error {
-	if f.logFormat != "text" && f.logFormat != "json" {
-		return badInput(fmt.Errorf("unknown --log-format %q (want text or json)", f.logFormat))
+	bad := func(flag string, v any, want string) error {
+		return badInput(fmt.Errorf("--%s %v: want %s", flag, v, want))
 	}
-	if f.workers < 1 {
-		return badInput(fmt.Errorf("--workers must be at least 1, got %d", f.workers))
+	switch {
+	case f.logFormat != "text" && f.logFormat != "json":
+		return bad("log-format", f.logFormat, "one of text, json")
+	case f.history != "summary" && f.history != "full":
+		return bad("history", f.history, "one of summary, full")
+	case f.workers < 1:
+		return bad("workers", f.workers, "at least 1")
+	case f.time < 0:
+		return bad("time", f.time, "at least 0")
+	case f.rounds < 0:
+		return bad("rounds", f.rounds, "at least 0")
+	case math.IsNaN(f.gap) || f.gap < 0 || math.IsInf(f.gap, 0):
+		return bad("gap", f.gap, "a number at least 0")
+	case f.top < 0:
+		return bad("top", f.top, "at least 0")
+	case f.repairEvery < 0:
+		return bad("repair-every", f.repairEvery, "at least 0")
+	case f.stall < 0:
+		return bad("stall", f.stall, "at least 0")
+	case f.report == stdoutPath && f.plan == stdoutPath:
+		return badInput(errors.New("--report and --plan cannot both be - (standard output)"))
 	}
-	if f.time < 0 || f.rounds < 0 || math.IsNaN(f.gap) {
-		return badInput(errors.New("--time, --rounds and --gap must not be negative"))
+	if err := checkWritable("--report", f.report); err != nil {
+		return err
+	}
+	return checkWritable("--plan", f.plan)
+}
+
+// checkTables checks the extra plan tables of m.
+func (f *runFlags) checkTables(m instances.Model) error {
+	pw, ok := m.(instances.PlanWriter)
+	if !ok || f.plan == "" || f.plan == stdoutPath {
+		return nil
+	}
+	for _, t := range pw.PlanTables() {
+		if err := checkWritable("--plan table", tablePath(f.plan, t)); err != nil {
+			return err
+		}
 	}
 	return nil
 }
 
-func newSolveCmd() *cobra.Command {
+func newSolveCmd(chosen string) *cobra.Command {
 	var f runFlags
 	cmd := &cobra.Command{
 		Use:   "solve --format FORMAT [flags] FILE",
@@ -81,26 +117,27 @@ func newSolveCmd() *cobra.Command {
 			if err := f.check(); err != nil {
 				return err
 			}
-			fam, err := findFamily(f.format)
+			m, err := load(f.format, args[0], f.opts)
 			if err != nil {
 				return err
 			}
-			m, err := fam.load(args[0], f.model)
-			if err != nil {
+			if err := f.checkTables(m); err != nil {
 				return err
 			}
 			_, err = solveModel(cmd.Context(), cmd.OutOrStdout(), cmd.ErrOrStderr(), &f, args[0], m)
 			return err
 		},
 	}
-	f.register(cmd, true)
+	f.opts = familyOptions(cmd, &f.format, chosen)
+	f.register(cmd)
 	return cmd
 }
 
 // solveModel runs the engine on a loaded model, prints the summary, writes
-// report and plan, and maps the outcome to an exit code.
-func solveModel(ctx context.Context, stdout, stderr io.Writer, f *runFlags, file string, m model) (*decomp.Result, error) {
-	p, err := m.problem()
+// report and plan, and maps the outcome to an exit code. When the report or
+// plan goes to standard output, the summary goes to stderr.
+func solveModel(ctx context.Context, stdout, stderr io.Writer, f *runFlags, file string, m instances.Model) (*decomp.Result, error) {
+	p, err := m.Problem()
 	if err != nil {
 		return nil, badInput(err)
 	}
@@ -117,23 +154,30 @@ func solveModel(ctx context.Context, stdout, stderr io.Writer, f *runFlags, file
 	}
 	res, err := decomp.Solve(ctx, p, settings)
 	if prog != nil {
-		prog.done()
+		prog.done(res)
 	}
 	if err != nil {
 		return nil, &exitError{code: exitInternal, err: err}
 	}
-	printSummary(stdout, m, res, f.top)
-	index := f.model.index
-	if index == 0 {
-		index = 1
+	summary := stdout
+	if f.report == stdoutPath || f.plan == stdoutPath {
+		summary = stderr
+	}
+	if err := printSummary(summary, m, p.IntegralObjective, res, f.top); err != nil {
+		return res, &exitError{code: exitInternal, err: err}
 	}
 	if f.report != "" {
-		if err := writeJSONFile(f.report, buildReport(f.format, file, index, f.workers, f.seed, m, res)); err != nil {
+		rep, err := buildReport(f.format, file, f.opts.values().Int("index"), f.workers, f.seed, f.history == "full", m, res)
+		if err != nil {
+			return res, &exitError{code: exitInternal, err: err}
+		}
+		rep.withRounded(roundedBound(res.Bound, p.IntegralObjective, m.Sense()))
+		if err := writeJSON(f.report, stdout, rep); err != nil {
 			return res, &exitError{code: exitInternal, err: err}
 		}
 	}
 	if f.plan != "" && res.Plan != nil {
-		if err := writePlanFile(f.plan, m, res.Plan); err != nil {
+		if err := writePlan(f.plan, stdout, m, res.Plan); err != nil {
 			return res, &exitError{code: exitInternal, err: err}
 		}
 	}
@@ -183,14 +227,16 @@ func (p *progress) Observe(pr *decomp.Progress) {
 	}
 	p.last = now
 	r := pr.Record
+	gap := math.Inf(1)
+	if pr.HasPlan {
+		gap = math.Abs(r.PlanValue-r.Bound) / math.Max(1, math.Abs(r.PlanValue))
+	}
 	if p.live {
 		plan := "none"
-		gap := "-"
 		if pr.HasPlan {
 			plan = fmtNum(r.PlanValue)
-			gap = fmt.Sprintf("%.3f%%", 100*math.Abs(r.PlanValue-r.Bound)/math.Max(1, math.Abs(r.PlanValue)))
 		}
-		line := fmt.Sprintf("round %d  %.1fs  bound %s  plan %s  gap %s", r.Round, r.Elapsed.Seconds(), fmtNum(r.Bound), plan, gap)
+		line := fmt.Sprintf("round %d  %.1fs  bound %s  plan %s  gap %s", r.Round, r.Elapsed.Seconds(), fmtNum(r.Bound), plan, fmtGap(gap))
 		pad := ""
 		if n := p.lastLine - len(line); n > 0 {
 			pad = fmt.Sprintf("%*s", n, "")
@@ -201,13 +247,25 @@ func (p *progress) Observe(pr *decomp.Progress) {
 	}
 	ev := p.log.Info().Int("round", r.Round).Float64("seconds", r.Elapsed.Seconds()).Float64("bound", r.Bound)
 	if pr.HasPlan {
-		ev = ev.Float64("plan", r.PlanValue)
+		ev = ev.Float64("plan", r.PlanValue).Str("gap", fmtGap(gap))
 	}
 	ev.Msg("progress")
 }
 
-func (p *progress) done() {
-	if p.live && p.lastLine > 0 {
-		fmt.Fprintln(p.w)
+// done ends the live line, or writes a final log line.
+func (p *progress) done(res *decomp.Result) {
+	if p.live {
+		if p.lastLine > 0 {
+			fmt.Fprintln(p.w)
+		}
+		return
 	}
+	if res == nil {
+		return
+	}
+	ev := p.log.Info().Int("round", res.Rounds).Float64("seconds", res.Elapsed.Seconds()).Float64("bound", res.Bound)
+	if res.Plan != nil {
+		ev = ev.Float64("plan", res.Plan.Value)
+	}
+	ev.Str("gap", fmtGap(res.Gap)).Str("stop", res.Status.String()).Msg("finished")
 }

@@ -334,6 +334,16 @@ func WriteScenario(dir string, in *Instance) error {
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return fmt.Errorf("cflp: writing scenario: %w", err)
 	}
+	return WriteScenarioTo(func(name string) (io.WriteCloser, error) { return os.Create(filepath.Join(dir, name)) }, in)
+}
+
+// WriteScenarioTo writes the three tables of a scenario folder through
+// create, which opens a file of the folder by name (SitesFile,
+// CustomersFile, LanesFile).
+func WriteScenarioTo(create func(name string) (io.WriteCloser, error), in *Instance) error {
+	if err := in.Validate(); err != nil {
+		return fmt.Errorf("cflp: writing scenario: %w", err)
+	}
 	sites := [][]string{{"id", "name", "capacity", "fixed_cost", "status"}}
 	for _, s := range in.Sites {
 		sites = append(sites, []string{s.ID, s.Name, formatNumber(s.Capacity), formatNumber(s.FixedCost), s.Status.String()})
@@ -354,22 +364,18 @@ func WriteScenario(dir string, in *Instance) error {
 		name    string
 		records [][]string
 	}{{SitesFile, sites}, {CustomersFile, customers}, {LanesFile, lanes}} {
-		if err := writeCSVFile(filepath.Join(dir, t.name), t.records); err != nil {
+		f, err := create(t.name)
+		if err != nil {
 			return fmt.Errorf("cflp: writing scenario: %w", err)
+		}
+		w := csv.NewWriter(f)
+		if err := w.WriteAll(t.records); err != nil {
+			f.Close()
+			return fmt.Errorf("cflp: writing scenario %s: %w", t.name, err)
+		}
+		if err := f.Close(); err != nil {
+			return fmt.Errorf("cflp: writing scenario %s: %w", t.name, err)
 		}
 	}
 	return nil
-}
-
-func writeCSVFile(path string, records [][]string) error {
-	f, err := os.Create(path)
-	if err != nil {
-		return err
-	}
-	w := csv.NewWriter(f)
-	if err := w.WriteAll(records); err != nil {
-		f.Close()
-		return fmt.Errorf("%s: %w", path, err)
-	}
-	return f.Close()
 }

@@ -1,14 +1,14 @@
-package main
+package cflp
 
 import (
-	"context"
 	"fmt"
 	"io"
 	"math"
 	"math/rand/v2"
 	"sort"
 
-	"pincer/instances/cflp"
+	"pincer/decomp"
+	"pincer/instances"
 )
 
 // The sites scenario is invented: Marrowby Provisions, a regional grocery
@@ -51,11 +51,11 @@ const (
 )
 
 // sitesDemoInstance builds the scenario deterministically.
-func sitesDemoInstance() *cflp.Instance {
+func sitesDemoInstance() *Instance {
 	rng := rand.New(rand.NewPCG(2027, 3))
-	in := &cflp.Instance{Name: "Marrowby Provisions, network plan"}
+	in := &Instance{Name: "Marrowby Provisions, network plan"}
 	for i, w := range sitesDemoWarehouses() {
-		in.Sites = append(in.Sites, cflp.Site{ID: fmt.Sprintf("W%02d", i+1), Name: w.name,
+		in.Sites = append(in.Sites, Site{ID: fmt.Sprintf("W%02d", i+1), Name: w.name,
 			Capacity: math.Round(w.capacity * sitesDemoSqueeze), FixedCost: w.running})
 	}
 	type point struct{ x, y float64 }
@@ -65,7 +65,7 @@ func sitesDemoInstance() *cflp.Instance {
 		town := sitesDemoWarehouses()[rng.IntN(len(sitesDemoWarehouses()))]
 		shops[j] = point{math.Min(300, math.Max(0, town.x+rng.NormFloat64()*35)), math.Min(300, math.Max(0, town.y+rng.NormFloat64()*35))}
 		pallets := float64(8 + rng.IntN(33)) // pallets a week
-		in.Customers = append(in.Customers, cflp.Customer{ID: fmt.Sprintf("S%03d", j+1),
+		in.Customers = append(in.Customers, Customer{ID: fmt.Sprintf("S%03d", j+1),
 			Name: fmt.Sprintf("shop %d", j+1), Demand: pallets})
 	}
 	in.Cost = make([][]float64, len(in.Sites))
@@ -79,40 +79,50 @@ func sitesDemoInstance() *cflp.Instance {
 	return in
 }
 
-// runSitesDemo solves the Marrowby Provisions scenario and explains the
-// warehouse capacity prices; it is `pincer demo --scenario sites`.
-func runSitesDemo(ctx context.Context, stdout, stderr io.Writer, f *runFlags) error {
-	in := sitesDemoInstance()
-	if err := in.Validate(); err != nil {
-		return &exitError{code: exitInternal, err: err}
-	}
-	m := &cflpModel{in: in, opt: cflp.Options{SingleSource: f.model.singleSource}}
-	fmt.Fprintf(stdout, "Marrowby Provisions (an invented wholesaler) can run any of %d warehouses\n", len(in.Sites))
-	fmt.Fprintf(stdout, "to supply %d shops (%.0f pallets a week); which should it run, at least weekly cost?\n\n",
-		len(in.Customers), in.TotalDemand())
-	f.format = "demo-sites"
-	if f.rounds == 0 {
+// Scenarios offers the invented "sites" scenario.
+func (Family) Scenarios() []instances.Scenario {
+	return []instances.Scenario{{
+		Name:  "sites",
+		About: "a wholesaler chooses which warehouses to run and which shops each serves (capacitated facility location)",
+		Options: []instances.Option{{Name: "single-source", Usage: "sites scenario: each shop served by one warehouse",
+			Kind: instances.Bool, Default: "false"}},
 		// The bound creeps up for thousands of rounds; 1500 rounds and the
 		// exact site search of the last repair settle the plan in seconds.
-		f.rounds = 1500
-	}
-	if f.report == "" {
-		f.report = "pincer-sites-report.json"
-	}
-	res, err := solveModel(ctx, stdout, stderr, f, "(embedded)", m)
-	if res != nil && res.Plan != nil && solutionOf(res.Plan).Optimal {
-		fmt.Fprintln(stdout, "The search over warehouse sets closed: this plan is the cheapest possible.")
-	}
-	if res != nil && res.Plan != nil {
-		explainSitesDemo(stdout, m, solutionOf(res.Plan), f.report)
-	}
-	return err
+		Rounds: 1500,
+		Report: "pincer-sites-report.json",
+		Load: func(w io.Writer, v instances.Values) (instances.Model, error) {
+			in := sitesDemoInstance()
+			m, err := NewModel(in, Options{SingleSource: v.Bool("single-source")})
+			if err != nil {
+				return nil, err
+			}
+			fmt.Fprintf(w, "Marrowby Provisions (an invented wholesaler) can run any of %d warehouses\n", len(in.Sites))
+			fmt.Fprintf(w, "to supply %d shops (%.0f pallets a week); which should it run, at least weekly cost?\n\n",
+				len(in.Customers), in.TotalDemand())
+			return m, nil
+		},
+		Explain: func(w io.Writer, m instances.Model, res *decomp.Result) error {
+			cm, ok := m.(*Model)
+			if !ok {
+				return fmt.Errorf("cflp: demo explains a %T", m)
+			}
+			sol, err := cm.SolutionOf(res.Plan)
+			if err != nil || sol == nil {
+				return err
+			}
+			if sol.Optimal {
+				fmt.Fprintln(w, "The search over warehouse sets closed: this plan is the cheapest possible.")
+			}
+			explainSitesDemo(w, cm, sol)
+			return nil
+		},
+	}}
 }
 
 // explainSitesDemo tells what the plan and the capacity prices mean for
 // the wholesaler.
-func explainSitesDemo(w io.Writer, m *cflpModel, sol *cflp.Solution, reportPath string) {
-	in := m.in
+func explainSitesDemo(w io.Writer, m *Model, sol *Solution) {
+	in := m.In
 	var open []int
 	for i, o := range sol.Open {
 		if o {
@@ -154,5 +164,4 @@ func explainSitesDemo(w io.Writer, m *cflpModel, sol *cflp.Solution, reportPath 
 	case slack > 0:
 		fmt.Fprintf(w, "  %d running warehouses have spare capacity: more pallets there would not lower the cost.\n", slack)
 	}
-	fmt.Fprintf(w, "Report written to %s.\n", reportPath)
 }
