@@ -9,6 +9,8 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
+
+	"pincer/instances"
 )
 
 // File names of a scenario folder.
@@ -337,6 +339,16 @@ func WriteScenario(dir string, in *Instance) error {
 	return WriteScenarioTo(func(name string) (io.WriteCloser, error) { return os.Create(filepath.Join(dir, name)) }, in)
 }
 
+// quotientNumber writes a computed unit cost: without the binary noise of
+// the division when the rounded text reads back within 1e-13 relative.
+func quotientNumber(v float64) string {
+	r := instances.RoundNumber(v)
+	if math.Abs(r-v) <= 1e-13*math.Abs(v) {
+		return instances.FormatNumber(v)
+	}
+	return formatNumber(v)
+}
+
 // WriteScenarioTo writes the three tables of a scenario folder through
 // create, which opens a file of the folder by name (SitesFile,
 // CustomersFile, LanesFile).
@@ -356,7 +368,7 @@ func WriteScenarioTo(create func(name string) (io.WriteCloser, error), in *Insta
 	for i, s := range in.Sites {
 		for j, c := range in.Customers {
 			if in.Allowed(i, j) {
-				lanes = append(lanes, []string{s.ID, c.ID, formatNumber(in.Cost[i][j] / c.Demand)})
+				lanes = append(lanes, []string{s.ID, c.ID, quotientNumber(in.Cost[i][j] / c.Demand)})
 			}
 		}
 	}

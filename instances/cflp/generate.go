@@ -44,6 +44,9 @@ func genCustKinds() [6]string {
 // distance, so Cost[i][j] = 10 · dist(i,j) · d_j. Every lane is allowed and
 // every site is free. Ids are S001…, C0001… and names are invented. The
 // same arguments always give the same instance.
+// round2 rounds to two decimals: generated data carry no more digits.
+func round2(v float64) float64 { return math.Round(v*100) / 100 }
+
 func Generate(sites, customers int, ratio float64, seed uint64) (*Instance, error) {
 	switch {
 	case sites < 1 || customers < 1:
@@ -70,7 +73,7 @@ func Generate(sites, customers int, ratio float64, seed uint64) (*Instance, erro
 	total := 0.0
 	for j := range in.Customers {
 		cp[j] = point{rng.Float64(), rng.Float64()}
-		d := uniform(genDemandLo, genDemandHi)
+		d := round2(uniform(genDemandLo, genDemandHi))
 		total += d
 		in.Customers[j] = Customer{
 			ID:     fmt.Sprintf("C%04d", j+1),
@@ -93,21 +96,16 @@ func Generate(sites, customers int, ratio float64, seed uint64) (*Instance, erro
 	scale := ratio * total / raw
 	for i := range in.Sites {
 		s := &in.Sites[i]
-		s.Capacity *= scale
-		s.FixedCost = uniform(genFixedLo, genFixedHi) + uniform(genFixedSqrtLo, genFixedSqrtHi)*math.Sqrt(s.Capacity)
+		s.Capacity = math.Ceil(s.Capacity*scale*100) / 100
+		s.FixedCost = round2(uniform(genFixedLo, genFixedHi) + uniform(genFixedSqrtLo, genFixedSqrtHi)*math.Sqrt(s.Capacity))
 		row := make([]float64, customers)
 		for j, c := range in.Customers {
-			row[j] = genUnitCostPerDistance * math.Hypot(sp[i].x-cp[j].x, sp[i].y-cp[j].y) * c.Demand
+			row[j] = round2(genUnitCostPerDistance*math.Hypot(sp[i].x-cp[j].x, sp[i].y-cp[j].y)) * c.Demand
 		}
 		in.Cost[i] = row
 	}
-	// Rounding in the scaling may leave the capacity a hair below
-	// ratio × demand; ratio ≥ 1 must still give a feasible instance.
-	if d, c := in.TotalDemand(), in.TotalCapacity(); c < d {
-		for i := range in.Sites {
-			in.Sites[i].Capacity *= d / c * (1 + 1e-15)
-		}
-	}
+	// Capacities are rounded up to cents, so the total stays at least
+	// ratio × demand and ratio ≥ 1 gives a feasible instance.
 	if err := in.Validate(); err != nil {
 		return nil, fmt.Errorf("cflp: generate: %w", err)
 	}

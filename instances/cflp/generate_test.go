@@ -40,8 +40,16 @@ func TestGenerateShape(t *testing.T) {
 	if in.Sites[0].Name == "" || in.Customers[0].Name == "" {
 		t.Error("names missing")
 	}
-	if got := in.TotalCapacity() / in.TotalDemand(); math.Abs(got-ratio) > 1e-12 {
-		t.Errorf("capacity / demand = %v, want %v", got, ratio)
+	// Capacities are rounded up to cents: the ratio is at least the one
+	// asked for and above it by at most a cent per site.
+	if got, slack := in.TotalCapacity()/in.TotalDemand(), 0.01*float64(len(in.Sites))/in.TotalDemand(); got < ratio-1e-12 || got > ratio+slack {
+		t.Errorf("capacity / demand = %v, want %v (+ at most %v)", got, ratio, slack)
+	}
+	// Generated data carry at most two decimals.
+	for _, c := range in.Customers {
+		if r := math.Round(c.Demand * 100); math.Abs(r/100-c.Demand) > 1e-9 {
+			t.Fatalf("demand %v has more than two decimals", c.Demand)
+		}
 	}
 	// Demand ~ U[5,35]: mean 20, standard error of the mean of 2000 draws
 	// 8.66/√2000 ≈ 0.19.

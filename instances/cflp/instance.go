@@ -1,12 +1,12 @@
 package cflp
 
 import (
-	"pincer/instances"
-
 	"errors"
 	"fmt"
 	"math"
 	"strconv"
+
+	"pincer/instances"
 )
 
 // Status says whether a site may be opened or closed by the optimisation.

@@ -5,13 +5,19 @@ import (
 	"fmt"
 	"io"
 	"math"
+
+	"pincer/instances"
 )
+
+// outNumber writes a value computed from the data.
+func outNumber(v float64) string { return instances.FormatNumber(v) }
 
 // WritePlanCSV writes a plan as CSV with the header
 // site,customer,quantity,cost: one row for every lane with a positive
 // quantity, where flow[i][j] is the quantity shipped from site i to customer
 // j in demand units and cost = Cost[i][j] · quantity / demand. Sites and
-// customers are written by id.
+// customers are written by id; quantity and cost are written without binary
+// noise (see [instances.FormatNumber]).
 func WritePlanCSV(w io.Writer, in *Instance, flow [][]float64) error {
 	if err := checkShape(in, flow); err != nil {
 		return fmt.Errorf("cflp: writing plan: %w", err)
@@ -33,7 +39,7 @@ func WritePlanCSV(w io.Writer, in *Instance, flow [][]float64) error {
 				return fmt.Errorf("cflp: writing plan: site %q may not serve customer %q", s.ID, c.ID)
 			}
 			cost := in.Cost[i][j] * q / c.Demand
-			if err := cw.Write([]string{s.ID, c.ID, formatNumber(q), formatNumber(cost)}); err != nil {
+			if err := cw.Write([]string{s.ID, c.ID, outNumber(q), outNumber(cost)}); err != nil {
 				return fmt.Errorf("cflp: writing plan: %w", err)
 			}
 		}
@@ -49,8 +55,11 @@ func WritePlanCSV(w io.Writer, in *Instance, flow [][]float64) error {
 // id,name,open,capacity,load,utilisation,fixed_cost,capacity_price.
 // open is "yes" or "no"; load is the quantity the site serves and
 // utilisation is load / capacity (empty for a site without capacity).
-// capacityPrice, the multiplier of the site's capacity row, may be nil, and
-// the column is then left empty.
+// capacity_price is what one more unit of capacity at an open site would
+// save in serving cost, per unit of demand, with the same sites open (the
+// shadow price of its capacity among the open sites); it is left empty for
+// closed sites, and for all sites when capacityPrice is nil. Computed values
+// (load, utilisation, capacity_price) are written without binary noise.
 func WriteSitesCSV(w io.Writer, in *Instance, open []bool, load []float64, capacityPrice []float64) error {
 	m := len(in.Sites)
 	if len(open) != m || len(load) != m || (capacityPrice != nil && len(capacityPrice) != m) {
@@ -68,13 +77,13 @@ func WriteSitesCSV(w io.Writer, in *Instance, open []bool, load []float64, capac
 		}
 		util := ""
 		if s.Capacity > 0 {
-			util = formatNumber(load[i] / s.Capacity)
+			util = outNumber(load[i] / s.Capacity)
 		}
 		price := ""
-		if capacityPrice != nil {
-			price = formatNumber(capacityPrice[i])
+		if capacityPrice != nil && open[i] {
+			price = outNumber(capacityPrice[i])
 		}
-		rec := []string{s.ID, s.Name, o, formatNumber(s.Capacity), formatNumber(load[i]), util, formatNumber(s.FixedCost), price}
+		rec := []string{s.ID, s.Name, o, formatNumber(s.Capacity), outNumber(load[i]), util, formatNumber(s.FixedCost), price}
 		if err := cw.Write(rec); err != nil {
 			return fmt.Errorf("cflp: writing sites: %w", err)
 		}

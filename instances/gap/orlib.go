@@ -1,8 +1,6 @@
 package gap
 
 import (
-	"pincer/instances"
-
 	"bufio"
 	"bytes"
 	"fmt"
@@ -10,6 +8,8 @@ import (
 	"os"
 	"path/filepath"
 	"strconv"
+
+	"pincer/instances"
 )
 
 // ParseError is the shared reader fault shape, [instances.ParseError]: file,
