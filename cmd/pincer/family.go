@@ -153,20 +153,32 @@ func familyOptions(cmd *cobra.Command, format *string, chosen string) *optionSet
 		s.add(cmd, e.fam.Options())
 		return s
 	}
-	for _, f := range registry() {
-		s.add(cmd, unionOptions(f))
-	}
+	s.add(cmd, unionOptions())
 	return s
 }
 
-// unionOptions marks each option with its family for the union help.
-func unionOptions(f instances.Family) []instances.Option {
+// unionOptions merges every family's options for help and completion when
+// no known --format is given; each usage names its family. The union
+// checks no ranges: the run stops at the missing --format anyway.
+func unionOptions() []instances.Option {
 	var out []instances.Option
-	for _, o := range f.Options() {
-		o.Usage = f.Name() + ": " + o.Usage
-		o.Allowed = nil // the union accepts any family's values until --format is known
-		o.HasMin, o.HasMax = false, false
-		out = append(out, o)
+	at := map[string]int{}
+	for _, f := range registry() {
+		for _, o := range f.Options() {
+			use := f.Name() + ": " + o.Usage
+			if r := o.Range(); r != "any text" {
+				use += " (" + r + ")"
+			}
+			if k, ok := at[o.Name]; ok {
+				out[k].Usage += "; " + use
+				continue
+			}
+			o.Usage = use
+			o.Allowed = nil
+			o.HasMin, o.HasMax = false, false
+			at[o.Name] = len(out)
+			out = append(out, o)
+		}
 	}
 	return out
 }
