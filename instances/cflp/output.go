@@ -16,14 +16,26 @@ func outNumber(v float64) string { return instances.FormatNumber(v) }
 // site,customer,quantity,cost: one row for every lane with a positive
 // quantity, where flow[i][j] is the quantity shipped from site i to customer
 // j in demand units and cost = Cost[i][j] · quantity / demand. Sites and
-// customers are written by id; quantity and cost are written without binary
+// customers are written by id; when the instance names any site or
+// customer, the columns site_name and customer_name follow. quantity and cost are written without binary
 // noise (see [instances.FormatNumber]).
 func WritePlanCSV(w io.Writer, in *Instance, flow [][]float64) error {
 	if err := checkShape(in, flow); err != nil {
 		return fmt.Errorf("cflp: writing plan: %w", err)
 	}
+	named := false
+	for _, s := range in.Sites {
+		named = named || s.Name != ""
+	}
+	for _, c := range in.Customers {
+		named = named || c.Name != ""
+	}
+	header := []string{"site", "customer", "quantity", "cost"}
+	if named {
+		header = append(header, "site_name", "customer_name")
+	}
 	cw := csv.NewWriter(w)
-	if err := cw.Write([]string{"site", "customer", "quantity", "cost"}); err != nil {
+	if err := cw.Write(header); err != nil {
 		return fmt.Errorf("cflp: writing plan: %w", err)
 	}
 	for i, s := range in.Sites {
@@ -39,7 +51,11 @@ func WritePlanCSV(w io.Writer, in *Instance, flow [][]float64) error {
 				return fmt.Errorf("cflp: writing plan: site %q may not serve customer %q", s.ID, c.ID)
 			}
 			cost := in.Cost[i][j] * q / c.Demand
-			if err := cw.Write([]string{s.ID, c.ID, outNumber(q), outNumber(cost)}); err != nil {
+			rec := []string{s.ID, c.ID, outNumber(q), outNumber(cost)}
+			if named {
+				rec = append(rec, s.Name, c.Name)
+			}
+			if err := cw.Write(rec); err != nil {
 				return fmt.Errorf("cflp: writing plan: %w", err)
 			}
 		}

@@ -14,7 +14,7 @@ func TestWritePlanCSV(t *testing.T) {
 		t.Fatal(err)
 	}
 	// Costs by hand: 40·20/20, 90·10/30, 30·20/30, 20·10/10.
-	want := "site,customer,quantity,cost\nN,a,20,40\nN,b,10,30\nS,b,20,20\nS,c,10,20\n"
+	want := "site,customer,quantity,cost,site_name,customer_name\nN,a,20,40,North,\nN,b,10,30,North,\nS,b,20,20,South,\nS,c,10,20,South,\n"
 	if b.String() != want {
 		t.Errorf("got\n%s\nwant\n%s", b.String(), want)
 	}
