@@ -205,7 +205,14 @@ func (m *Model) WritePlan(w io.Writer, p *decomp.Plan, _ instances.Tables) error
 	if assign == nil {
 		return errors.New("gap: no plan")
 	}
-	return WritePlanCSV(w, m.In, assign)
+	var names []string
+	if m.AgentNames != nil {
+		names = make([]string, m.In.Agents)
+		for i := range names {
+			names[i] = m.AgentName(i)
+		}
+	}
+	return WriteNamedPlanCSV(w, m.In, assign, names)
 }
 
 // Recipes offers `gen gap`.

@@ -17,6 +17,16 @@ func planHeader() []string { return []string{"job", "agent", "cost", "use"} }
 // job and agent are 1-based, cost and use are c_ij and a_ij. Every job must
 // have an existing agent.
 func WritePlanCSV(w io.Writer, in *Instance, assign []int) error {
+	return WriteNamedPlanCSV(w, in, assign, nil)
+}
+
+// WriteNamedPlanCSV is WritePlanCSV with a fifth column agent_name taken
+// from names (names[i] names agent i); with nil names it writes the plain
+// four columns. ReadPlanCSV reads both layouts.
+func WriteNamedPlanCSV(w io.Writer, in *Instance, assign []int, names []string) error {
+	if names != nil && len(names) != in.Agents {
+		return fmt.Errorf("gap: plan for %q: %d agent names for %d agents", in.Name, len(names), in.Agents)
+	}
 	if err := in.Validate(); err != nil {
 		return err
 	}
@@ -24,10 +34,14 @@ func WritePlanCSV(w io.Writer, in *Instance, assign []int) error {
 		return fmt.Errorf("gap: plan for %q has %d entries for %d jobs", in.Name, len(assign), in.Jobs)
 	}
 	cw := csv.NewWriter(w)
-	if err := cw.Write(planHeader()); err != nil {
+	header := planHeader()
+	if names != nil {
+		header = append(header, "agent_name")
+	}
+	if err := cw.Write(header); err != nil {
 		return fmt.Errorf("gap: writing plan: %w", err)
 	}
-	rec := make([]string, 4)
+	rec := make([]string, len(header))
 	for j, i := range assign {
 		if i < 0 || i >= in.Agents {
 			return fmt.Errorf("gap: plan for %q: job %d has agent index %d, want 0..%d", in.Name, j+1, i, in.Agents-1)
@@ -36,6 +50,9 @@ func WritePlanCSV(w io.Writer, in *Instance, assign []int) error {
 		rec[1] = strconv.Itoa(i + 1)
 		rec[2] = strconv.FormatInt(in.Cost[i][j], 10)
 		rec[3] = strconv.FormatInt(in.Use[i][j], 10)
+		if names != nil {
+			rec[4] = names[i]
+		}
 		if err := cw.Write(rec); err != nil {
 			return fmt.Errorf("gap: writing plan: %w", err)
 		}
@@ -50,7 +67,8 @@ func WritePlanCSV(w io.Writer, in *Instance, assign []int) error {
 // ReadPlanCSV reads a plan in the layout WritePlanCSV writes and returns
 // assign (assign[j] = 0-based agent of job j). Rows may come in any order
 // but every job of in must appear exactly once with an agent in range.
-// Fields are trimmed of blanks; the cost and use fields may be empty, and
+// A fifth column agent_name (as WriteNamedPlanCSV writes) is allowed and
+// ignored. Fields are trimmed of blanks; the cost and use fields may be empty, and
 // when given must equal c_ij and a_ij of in (a guard against reading a plan
 // made for another instance). Faults are reported as *ParseError, with
 // Token the 1-based field number.
@@ -91,7 +109,11 @@ func ReadPlanCSV(r io.Reader, file string, in *Instance) ([]int, error) {
 	}
 	line, _ := cr.FieldPos(0)
 	header := planHeader()
-	if len(rec) != len(header) {
+	fields := len(header)
+	if len(rec) == 5 && strings.EqualFold(strings.TrimSpace(rec[4]), "agent_name") {
+		fields = 5 // the names are informative; the agent number decides
+	}
+	if len(rec) != fields {
 		return nil, fail(line, 1, 0, "header job,agent,cost,use", got(strings.Join(rec, ","), fmt.Sprintf("%d fields", len(rec))))
 	}
 	for k, name := range header {
@@ -117,8 +139,8 @@ func ReadPlanCSV(r io.Reader, file string, in *Instance) ([]int, error) {
 		}
 		line, _ := cr.FieldPos(0)
 		last = line
-		if len(rec) != 4 {
-			return nil, fail(line, 1, 0, "4 fields job,agent,cost,use", got(strings.Join(rec, ","), fmt.Sprintf("%d fields", len(rec))))
+		if len(rec) != fields {
+			return nil, fail(line, 1, 0, fmt.Sprintf("%d fields as in the header", fields), got(strings.Join(rec, ","), fmt.Sprintf("%d fields", len(rec))))
 		}
 		field := func(k int, expected string, lo, hi int64) (int64, error) {
 			s := strings.TrimSpace(rec[k])

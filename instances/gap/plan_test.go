@@ -76,3 +76,25 @@ func TestReadPlanCSVErrors(t *testing.T) {
 		})
 	}
 }
+
+// TestNamedPlanReadsBack: the agent_name column is written when names are
+// given and ignored on reading; the agent number decides.
+func TestNamedPlanReadsBack(t *testing.T) {
+	in := &Instance{Name: "two", Agents: 2, Jobs: 3,
+		Cost: [][]int64{{1, 2, 3}, {4, 5, 6}}, Use: [][]int64{{1, 1, 1}, {1, 1, 1}}, Capacity: []int64{3, 3}}
+	var b strings.Builder
+	if err := WriteNamedPlanCSV(&b, in, []int{0, 1, 1}, []string{"Ashcombe", "Bellwater"}); err != nil {
+		t.Fatal(err)
+	}
+	want := "job,agent,cost,use,agent_name\n1,1,1,1,Ashcombe\n2,2,5,1,Bellwater\n3,2,6,1,Bellwater\n"
+	if b.String() != want {
+		t.Fatalf("got\n%s\nwant\n%s", b.String(), want)
+	}
+	got, err := ReadPlanCSV(strings.NewReader(b.String()), "named.csv", in)
+	if err != nil || len(got) != 3 || got[0] != 0 || got[1] != 1 || got[2] != 1 {
+		t.Fatalf("read back %v %v", got, err)
+	}
+	if err := WriteNamedPlanCSV(&b, in, []int{0, 1, 1}, []string{"only one"}); err == nil {
+		t.Error("short name list accepted")
+	}
+}
