@@ -4,7 +4,6 @@ import (
 	"context"
 	"fmt"
 	"math"
-	"runtime"
 
 	"golang.org/x/sync/errgroup"
 
@@ -163,6 +162,8 @@ type scratch struct {
 	wi     []int64
 	x      []float64
 	take   []bool
+	// fixedIn lists the lanes (Index = lane) with a positive fixed share.
+	fixedIn []decomp.Entry
 	// Result of the last evaluation: the site value and the shares served
 	// (customer, share).
 	value float64
@@ -234,59 +235,128 @@ func newModel(in *Instance, opt Options) (*model, error) {
 // continuous (split demand, or single source without an exact integer
 // scale) or binary. The result is left in sc.
 func (md *model) eval(i int, sc *scratch, prices []float64, binary bool) error {
+	return md.evalFixed(i, sc, prices, binary, nil)
+}
+
+// evalFixed is eval with some shares fixed: fix lists (Var = customer j,
+// Value = x_ij) sorted by customer. A fixed share is served as given (its
+// demand comes off the capacity, its priced cost is added); the knapsack
+// decides the rest. A positive share on a lane the site cannot serve, a
+// share outside [0, 1] (or not 0 or 1 with single source), or fixed shares
+// over the capacity leave no point: the error wraps decomp.ErrInfeasible.
+// With no fixings the arithmetic is eval's own.
+func (md *model) evalFixed(i int, sc *scratch, prices []float64, binary bool, fix []decomp.Fixing) error {
 	st := &md.sites[i]
 	sc.idx = sc.idx[:0]
 	sc.profit = sc.profit[:0]
+	sc.fixedIn = sc.fixedIn[:0]
+	var usedF, fixedPriced float64
+	var usedI int64
+	id := md.in.Sites[i].ID
+	next := 0
 	for k, j := range st.lanes {
+		if len(fix) > 0 {
+			for ; next < len(fix) && fix[next].Var < int(j); next++ {
+				if fix[next].Value != 0 {
+					return fmt.Errorf("cflp: site %q cannot serve customer %d, fixed to %v: %w", id, fix[next].Var, fix[next].Value, decomp.ErrInfeasible)
+				}
+			}
+			if next < len(fix) && fix[next].Var == int(j) {
+				v := fix[next].Value
+				next++
+				if !(v >= 0 && v <= 1) || (md.opt.SingleSource && v != 0 && v != 1) {
+					return fmt.Errorf("cflp: site %q: share of customer %d fixed to %v: %w", id, j, v, decomp.ErrInfeasible)
+				}
+				if v > 0 {
+					sc.fixedIn = append(sc.fixedIn, decomp.Entry{Index: k, Value: v})
+					usedF += st.weight[k] * v
+					if binary {
+						usedI += st.iweight[k]
+					}
+					fixedPriced += (st.cost[k] + prices[j]) * v
+				}
+				continue
+			}
+		}
 		if p := -(st.cost[k] + prices[j]); p > 0 {
 			sc.idx = append(sc.idx, int32(k))
 			sc.profit = append(sc.profit, p)
 		}
 	}
+	for ; next < len(fix); next++ {
+		if fix[next].Value != 0 {
+			return fmt.Errorf("cflp: site %q cannot serve customer %d, fixed to %v: %w", id, fix[next].Var, fix[next].Value, decomp.ErrInfeasible)
+		}
+	}
+	roomI, roomF := st.icap-usedI, st.capacity-usedF
+	if len(sc.fixedIn) > 0 {
+		if (binary && roomI < 0) || roomF < -1e-9*math.Max(1, st.capacity) {
+			return fmt.Errorf("cflp: site %q: fixed shares need %v of capacity %v: %w", id, usedF, st.capacity, decomp.ErrInfeasible)
+		}
+		roomF = math.Max(0, roomF)
+	}
 	n := len(sc.idx)
 	sc.serve = sc.serve[:0]
 	sc.value, sc.cost = st.fixed, st.fixed
-	if n == 0 {
+	if len(sc.fixedIn) > 0 {
+		sc.value += fixedPriced
+	}
+	if n == 0 && len(sc.fixedIn) == 0 {
 		return nil
 	}
 	sc.x = grow(sc.x, n)
-	var best float64
-	var err error
-	if binary {
-		sc.wi = sc.wi[:0]
-		for _, k := range sc.idx {
-			sc.wi = append(sc.wi, st.iweight[k])
-		}
-		if cap(sc.take) < n {
-			sc.take = make([]bool, n)
-		}
-		sc.take = sc.take[:n]
-		best, err = sc.ks.Solve(sc.profit, sc.wi, st.icap, sc.take)
-		for k, t := range sc.take {
-			sc.x[k] = 0
-			if t {
-				sc.x[k] = 1
+	if n > 0 {
+		var best float64
+		var err error
+		if binary {
+			sc.wi = sc.wi[:0]
+			for _, k := range sc.idx {
+				sc.wi = append(sc.wi, st.iweight[k])
 			}
+			if cap(sc.take) < n {
+				sc.take = make([]bool, n)
+			}
+			sc.take = sc.take[:n]
+			best, err = sc.ks.Solve(sc.profit, sc.wi, roomI, sc.take)
+			for k, t := range sc.take {
+				sc.x[k] = 0
+				if t {
+					sc.x[k] = 1
+				}
+			}
+		} else {
+			sc.wf = sc.wf[:0]
+			for _, k := range sc.idx {
+				sc.wf = append(sc.wf, st.weight[k])
+			}
+			best, err = sc.ks.SolveFractional(sc.profit, sc.wf, roomF, sc.x)
 		}
-	} else {
-		sc.wf = sc.wf[:0]
-		for _, k := range sc.idx {
-			sc.wf = append(sc.wf, st.weight[k])
+		if err != nil {
+			return fmt.Errorf("cflp: site %q knapsack: %w", id, err)
 		}
-		best, err = sc.ks.SolveFractional(sc.profit, sc.wf, st.capacity, sc.x)
+		sc.value -= best
 	}
-	if err != nil {
-		return fmt.Errorf("cflp: site %q knapsack: %w", md.in.Sites[i].ID, err)
-	}
-	sc.value -= best
+	// Shares in lane order: the fixed ones merged with the knapsack's.
+	f := 0
 	for k, x := range sc.x[:n] {
-		if x > 0 {
-			lane := sc.idx[k]
-			sc.serve = append(sc.serve, decomp.Entry{Index: int(st.lanes[lane]), Value: x})
-			sc.cost += st.cost[lane] * x
+		lane := sc.idx[k]
+		for ; f < len(sc.fixedIn) && sc.fixedIn[f].Index < int(lane); f++ {
+			sc.serveLane(st, sc.fixedIn[f].Index, sc.fixedIn[f].Value)
 		}
+		if x > 0 {
+			sc.serveLane(st, int(lane), x)
+		}
+	}
+	for ; f < len(sc.fixedIn); f++ {
+		sc.serveLane(st, sc.fixedIn[f].Index, sc.fixedIn[f].Value)
 	}
 	return nil
+}
+
+// serveLane records share x of the site's lane k.
+func (sc *scratch) serveLane(st *site, k int, x float64) {
+	sc.serve = append(sc.serve, decomp.Entry{Index: int(st.lanes[k]), Value: x})
+	sc.cost += st.cost[k] * x
 }
 
 func grow(s []float64, n int) []float64 {
@@ -367,23 +437,69 @@ func startPrices(md *model) []float64 {
 }
 
 // siteBlock is one site in the site relaxation.
+//
+// Variables: 0 is y_i (1 when the site opens), 1+j is x_ij, the share of
+// customer j (0-based, over all customers) served by the site; Answer.Primal
+// lists y_i = 1 and the positive shares of an open site, nothing for a
+// closed one. Shares are binary with single source, in [0, 1] otherwise.
+// Fixings use the same numbering: y_i fixed to 1 opens the site whatever
+// its value, y_i fixed to 0 closes it; a share fixed to a positive value
+// opens it and is served as fixed (see evalFixed), the knapsack deciding
+// the other shares. Contradictions (y_i fixed against the site's forced
+// status or a positive fixed share, shares over the capacity or on lanes
+// the site cannot serve) give an error wrapping decomp.ErrInfeasible.
 type siteBlock struct {
-	md *model
-	i  int
-	sc scratch
+	md  *model
+	i   int
+	sc  scratch
+	fix []decomp.Fixing // customer fixings of this Solve (Var = customer)
 }
 
 func (b *siteBlock) Solve(_ context.Context, req *decomp.Request, ans *decomp.Answer) error {
 	ans.Value, ans.Cost = 0, 0
 	ans.Use = ans.Use[:0]
 	ans.Primal = ans.Primal[:0]
-	if b.md.sites[b.i].status == ForcedClosed {
+	status := b.md.sites[b.i].status
+	fixed := req.Fixed()
+	var mustOpen, mustClose bool
+	if len(fixed) > 0 {
+		n := len(b.md.in.Customers)
+		b.fix = b.fix[:0]
+		for _, f := range fixed {
+			if f.Var < 0 || f.Var > n {
+				return fmt.Errorf("cflp: site block %d: fixing of variable %d, but the block has %d", req.Block, f.Var, n+1)
+			}
+			if f.Var > 0 {
+				b.fix = append(b.fix, decomp.Fixing{Var: f.Var - 1, Value: f.Value})
+				mustOpen = mustOpen || f.Value != 0
+				continue
+			}
+			switch f.Value {
+			case 0:
+				mustClose = true
+			case 1:
+				mustOpen = true
+			default:
+				return fmt.Errorf("cflp: site block %d: y fixed to %v, not 0 or 1: %w", req.Block, f.Value, decomp.ErrInfeasible)
+			}
+		}
+		mustOpen = mustOpen || status == ForcedOpen
+		mustClose = mustClose || status == ForcedClosed
+		if mustOpen && mustClose {
+			return fmt.Errorf("cflp: site block %d: the fixings (and the site's status %v) both open and close it: %w", req.Block, status, decomp.ErrInfeasible)
+		}
+	}
+	if status == ForcedClosed || mustClose {
 		return nil
 	}
-	if err := b.md.eval(b.i, &b.sc, req.Prices, b.md.binary()); err != nil {
+	var fix []decomp.Fixing
+	if len(fixed) > 0 {
+		fix = b.fix
+	}
+	if err := b.md.evalFixed(b.i, &b.sc, req.Prices, b.md.binary(), fix); err != nil {
 		return err
 	}
-	if !b.md.opens(b.i, b.sc.value) {
+	if !mustOpen && !b.md.opens(b.i, b.sc.value) {
 		return nil
 	}
 	ans.Value, ans.Cost = b.sc.value, b.sc.cost
@@ -396,31 +512,51 @@ func (b *siteBlock) Solve(_ context.Context, req *decomp.Request, ans *decomp.An
 }
 
 // aggregateBlock owns every site: it evaluates the site knapsacks in
-// parallel, then chooses the open sites by a covering knapsack.
+// parallel (on req.Workers goroutines), then chooses the open sites by a
+// covering knapsack.
+//
+// Variables: with m sites and n customers, i (0 <= i < m) is y_i and
+// m + i·n + j is x_ij, the share of customer j served by site i; Answer.Primal
+// lists the open sites' y_i = 1 first, then their positive shares. Fixings
+// use the same numbering and mean for each site what they mean for a
+// siteBlock; a site that must open counts towards covering the demand, and
+// when the sites allowed to open cannot cover the demand the error wraps
+// decomp.ErrInfeasible.
 type aggregateBlock struct {
-	md      *model
-	sc      []scratch
-	open    []bool
-	value   []float64 // site values of the last Solve
-	use     []float64
-	ks      subproblem.Knapsack
-	cand    []int
-	profit  []float64
-	weight  []int64
-	take    []bool
-	workers int
+	md     *model
+	sc     []scratch
+	open   []bool
+	value  []float64 // site values of the last Solve
+	use    []float64
+	ks     subproblem.Knapsack
+	cand   []int
+	profit []float64
+	weight []int64
+	take   []bool
+	// Fixings of the current Solve, per site: customer fixings
+	// (Var = customer), must open, must stay closed.
+	fix            [][]decomp.Fixing
+	mustOpen, shut []bool
 }
 
 func newAggregateBlock(md *model) *aggregateBlock {
 	m := len(md.sites)
 	return &aggregateBlock{md: md, sc: make([]scratch, m), open: make([]bool, m), value: make([]float64, m),
-		use: make([]float64, len(md.in.Customers)), workers: runtime.GOMAXPROCS(0)}
+		use: make([]float64, len(md.in.Customers))}
 }
 
 func (b *aggregateBlock) Solve(ctx context.Context, req *decomp.Request, ans *decomp.Answer) error {
 	md := b.md
 	m := len(md.sites)
-	if err := b.evalAll(ctx, req.Prices); err != nil {
+	fixed := req.Fixed()
+	var fix [][]decomp.Fixing
+	if len(fixed) > 0 {
+		if err := b.splitFixings(req.Block, fixed); err != nil {
+			return err
+		}
+		fix = b.fix
+	}
+	if err := b.evalAll(ctx, req.Prices, req.Workers, fix); err != nil {
 		return err
 	}
 	// Open every site forced open or with a non-positive value; the
@@ -430,15 +566,19 @@ func (b *aggregateBlock) Solve(ctx context.Context, req *decomp.Request, ans *de
 	for i := range md.sites {
 		b.open[i] = false
 		switch {
-		case md.sites[i].status == ForcedClosed:
-		case md.sites[i].status == ForcedOpen || b.value[i] <= 0:
+		case md.sites[i].status == ForcedClosed || (fix != nil && b.shut[i]):
+		case md.sites[i].status == ForcedOpen || b.value[i] <= 0 || (fix != nil && b.mustOpen[i]):
 			b.open[i] = true
 			covered += md.sites[i].capacity
 		default:
 			b.cand = append(b.cand, i)
 		}
 	}
-	if short := md.demand - covered; short > 1e-9*math.Max(1, md.demand) && len(b.cand) > 0 {
+	short := md.demand - covered
+	if fix != nil && short > 1e-9*math.Max(1, md.demand) && len(b.cand) == 0 {
+		return fmt.Errorf("cflp: aggregate block: the sites allowed to open under the fixings cover %v of demand %v: %w", covered, md.demand, decomp.ErrInfeasible)
+	}
+	if short > 1e-9*math.Max(1, md.demand) && len(b.cand) > 0 {
 		// Close as much value as possible among the candidates while the
 		// open capacity still covers the shortfall:
 		// max Σ v_i w_i  s.t.  Σ s_i w_i <= Σ_cand s_i − short.
@@ -459,6 +599,9 @@ func (b *aggregateBlock) Solve(ctx context.Context, req *decomp.Request, ans *de
 		t := (candCap - short) * sc
 		room := math.Floor(t + 1e-7*math.Max(1, math.Abs(t)))
 		if room < 0 {
+			if fix != nil {
+				return fmt.Errorf("cflp: aggregate block: the sites allowed to open under the fixings cover %v of demand %v: %w", covered+candCap, md.demand, decomp.ErrInfeasible)
+			}
 			room = -1 // even opening every candidate is short: open them all
 		}
 		if cap(b.take) < len(b.cand) {
@@ -507,23 +650,28 @@ func (b *aggregateBlock) Solve(ctx context.Context, req *decomp.Request, ans *de
 }
 
 // evalAll evaluates every site that is not forced closed, on up to
-// GOMAXPROCS goroutines.
-func (b *aggregateBlock) evalAll(ctx context.Context, prices []float64) error {
+// workers goroutines (none of its own when workers <= 1). Each site has
+// its own scratch, so the result is the same for any worker count.
+func (b *aggregateBlock) evalAll(ctx context.Context, prices []float64, workers int, fix [][]decomp.Fixing) error {
 	md := b.md
 	m := len(md.sites)
 	one := func(i int) error {
-		if md.sites[i].status == ForcedClosed {
+		var f []decomp.Fixing
+		if fix != nil {
+			f = fix[i]
+		}
+		if md.sites[i].status == ForcedClosed || (fix != nil && b.shut[i]) {
 			b.value[i] = 0
 			b.sc[i].serve = b.sc[i].serve[:0]
 			return nil
 		}
-		if err := md.eval(i, &b.sc[i], prices, md.binary()); err != nil {
+		if err := md.evalFixed(i, &b.sc[i], prices, md.binary(), f); err != nil {
 			return err
 		}
 		b.value[i] = b.sc[i].value
 		return nil
 	}
-	if b.workers <= 1 || m < 8 {
+	if workers <= 1 || m < 8 {
 		for i := 0; i < m; i++ {
 			if err := one(i); err != nil {
 				return err
@@ -532,8 +680,8 @@ func (b *aggregateBlock) evalAll(ctx context.Context, prices []float64) error {
 		return nil
 	}
 	g, gctx := errgroup.WithContext(ctx)
-	g.SetLimit(b.workers)
-	chunk := max(1, m/(4*b.workers))
+	g.SetLimit(workers)
+	chunk := max(1, m/(4*workers))
 	for lo := 0; lo < m; lo += chunk {
 		hi := min(lo+chunk, m)
 		g.Go(func() error {
@@ -549,4 +697,48 @@ func (b *aggregateBlock) evalAll(ctx context.Context, prices []float64) error {
 		})
 	}
 	return g.Wait()
+}
+
+// splitFixings sorts the block's fixings into per-site customer fixings and
+// must-open and must-close marks, and rejects contradictions.
+func (b *aggregateBlock) splitFixings(block int, fixed []decomp.Fixing) error {
+	md := b.md
+	m, n := len(md.sites), len(md.in.Customers)
+	if b.fix == nil {
+		b.fix = make([][]decomp.Fixing, m)
+		b.mustOpen = make([]bool, m)
+		b.shut = make([]bool, m)
+	}
+	for i := range m {
+		b.fix[i] = b.fix[i][:0]
+		b.mustOpen[i] = md.sites[i].status == ForcedOpen
+		b.shut[i] = md.sites[i].status == ForcedClosed
+	}
+	for _, f := range fixed {
+		switch {
+		case f.Var < 0 || f.Var >= m+m*n:
+			return fmt.Errorf("cflp: aggregate block %d: fixing of variable %d, but the block has %d", block, f.Var, m+m*n)
+		case f.Var < m:
+			switch f.Value {
+			case 0:
+				b.shut[f.Var] = true
+			case 1:
+				b.mustOpen[f.Var] = true
+			default:
+				return fmt.Errorf("cflp: aggregate block %d: y of site %q fixed to %v, not 0 or 1: %w", block, md.in.Sites[f.Var].ID, f.Value, decomp.ErrInfeasible)
+			}
+		default:
+			i, j := (f.Var-m)/n, (f.Var-m)%n
+			b.fix[i] = append(b.fix[i], decomp.Fixing{Var: j, Value: f.Value})
+			if f.Value != 0 {
+				b.mustOpen[i] = true
+			}
+		}
+	}
+	for i := range m {
+		if b.mustOpen[i] && b.shut[i] {
+			return fmt.Errorf("cflp: aggregate block %d: the fixings (and status %v) both open and close site %q: %w", block, md.sites[i].status, md.in.Sites[i].ID, decomp.ErrInfeasible)
+		}
+	}
+	return nil
 }
