@@ -1,0 +1,226 @@
+package gap
+
+import (
+	"context"
+	"fmt"
+	"math/rand/v2"
+
+	"pincer/decomp"
+	"pincer/heuristics"
+)
+
+// repairer turns block answers into an assignment with the shared
+// assignment heuristics. It is called from one goroutine at a time.
+type repairer struct {
+	in       *Instance
+	opt      Options
+	model    *heuristics.Assignment
+	searcher *heuristics.Searcher
+	priced   [][]float64
+	relaxed  [][]int
+	options  [][]int // choice relaxation: agents of each job's options
+	// failures counts repairs in a row that found no plan; while it grows
+	// the repairer skips more and more calls (deterministically), so an
+	// infeasible or very tight instance does not spend the run repairing.
+	failures, skip int
+	calls          int // in-round improvements made
+	// idle counts in-round repairs since the best plan last improved; the
+	// longer it grows, the more tabu moves the periodic search gets, and
+	// it then starts from the best plan (the bound has usually settled by
+	// then, so the run's time is better spent on the plan).
+	idle int
+}
+
+func newRepairer(in *Instance, opt Options) *repairer {
+	m := &heuristics.Assignment{
+		Cost:     make([][]float64, in.Agents),
+		Weight:   make([][]float64, in.Agents),
+		Capacity: make([]float64, in.Agents),
+		Maximise: opt.Maximise,
+	}
+	for i := 0; i < in.Agents; i++ {
+		m.Cost[i] = make([]float64, in.Jobs)
+		m.Weight[i] = make([]float64, in.Jobs)
+		for j := 0; j < in.Jobs; j++ {
+			m.Cost[i][j] = float64(in.Cost[i][j])
+			m.Weight[i][j] = float64(in.Use[i][j])
+		}
+		m.Capacity[i] = float64(in.Capacity[i])
+	}
+	return &repairer{in: in, opt: opt, model: m}
+}
+
+// searchEvery makes every so many in-round repairs run the tabu search
+// too (the others only descend).
+const searchEvery = 8
+
+// improveSettings gives the move budget of a repair: a light polish in
+// rounds, a thorough search at the end (which the time limit may cut).
+// The budgets count moves, so runs are reproducible.
+func (r *repairer) improveSettings(final bool) heuristics.ImproveSettings {
+	n := r.in.Jobs
+	if final {
+		if r.opt.FinalImprove != (heuristics.ImproveSettings{}) {
+			return r.opt.FinalImprove
+		}
+		return heuristics.ImproveSettings{Moves: 10*n + 2000}
+	}
+	if r.opt.Improve != (heuristics.ImproveSettings{}) {
+		return r.opt.Improve
+	}
+	// Repairs in rounds are frequent: most only descend, and every
+	// searchEvery-th one also runs the tabu search.
+	if r.calls%searchEvery == 0 {
+		scale := min(1+r.idle/32, 16)
+		return heuristics.ImproveSettings{Moves: (n + 200) * scale, PairNodes: -1}
+	}
+	return heuristics.ImproveSettings{Moves: -1, PairNodes: -1}
+}
+
+func (r *repairer) Repair(ctx context.Context, rin *decomp.RepairInput) (*decomp.Plan, error) {
+	in := r.in
+	if r.searcher == nil {
+		s, err := heuristics.NewSearcher(r.model)
+		if err != nil {
+			return nil, err
+		}
+		r.searcher = s
+		r.priced = make([][]float64, in.Agents)
+		for i := range r.priced {
+			r.priced[i] = make([]float64, in.Jobs)
+		}
+		r.relaxed = make([][]int, in.Agents)
+		if r.opt.Relaxation == ChoiceRelaxation {
+			r.options = make([][]int, in.Jobs)
+			for j := range r.options {
+				r.options[j] = jobAgents(in, j)
+			}
+		}
+	}
+	relaxed, priced := r.relaxed, r.priced
+	for i := range relaxed {
+		relaxed[i] = relaxed[i][:0]
+	}
+	switch r.opt.Relaxation {
+	case KnapsackRelaxation:
+		for i := range relaxed {
+			for _, e := range rin.Answers[i].Primal {
+				relaxed[i] = append(relaxed[i], e.Index)
+			}
+			for j := 0; j < in.Jobs; j++ {
+				priced[i][j] = float64(in.Cost[i][j]) + rin.Prices[j]
+			}
+		}
+	default:
+		for j := range rin.Answers {
+			i := r.options[j][rin.Answers[j].Primal[0].Index]
+			relaxed[i] = append(relaxed[i], j)
+		}
+		for i := range priced {
+			for j := 0; j < in.Jobs; j++ {
+				priced[i][j] = float64(in.Cost[i][j]) + rin.Prices[i]*float64(in.Use[i][j])
+			}
+		}
+	}
+	if !rin.Final && r.skip > 0 {
+		r.skip--
+		return nil, nil
+	}
+	rng := rand.New(rand.NewPCG(rin.Seed, 0x6a6f62))
+	var assign []int
+	if !rin.Final {
+		r.calls++
+	}
+	intensify := !rin.Final && r.calls%searchEvery == 0 && r.idle >= 32 && rin.Best != nil
+	if (rin.Final || intensify) && rin.Best != nil {
+		// The last repair, and the periodic search once the plan has
+		// stopped improving, work from the best plan found so far.
+		best, ok := rin.Best.Detail.([]int)
+		if !ok || len(best) != r.in.Jobs {
+			return nil, fmt.Errorf("gap: best plan of type %T is not an assignment of %d jobs", rin.Best.Detail, r.in.Jobs)
+		}
+		assign = append([]int(nil), best...)
+	} else {
+		var ok bool
+		assign, ok = r.searcher.Repair(ctx, relaxed, priced, rng)
+		if !ok {
+			r.failures++
+			r.skip = 1<<min(r.failures, 6) - 1
+			return nil, nil
+		}
+		r.failures = 0
+	}
+	settings := r.improveSettings(rin.Final)
+	assign, value := r.searcher.Improve(ctx, assign, settings, rng)
+	if rin.Final {
+		// More passes while they pay off (each from the best so far, with
+		// fresh random choices). Small instances, whose passes are cheap,
+		// get more patience: 1000/n fruitless passes in a row (at least 3)
+		// end it.
+		idle, patience := 0, max(3, 1000/max(in.Jobs, 1))
+		for pass := 1; pass < 2*patience && idle < patience && ctx.Err() == nil; pass++ {
+			next, v := r.searcher.Improve(ctx, assign, settings, rng)
+			if rin.Sense.Better(v, value) {
+				assign, value, idle = next, v, 0
+			} else {
+				idle++
+			}
+		}
+	}
+	if !rin.Final {
+		if rin.Best == nil || rin.Sense.Better(value, rin.Best.Value) {
+			r.idle = 0
+		} else {
+			r.idle++
+		}
+	}
+	return r.plan(assign), nil
+}
+
+// jobAgents lists, in option order, the agents job j may go to in the
+// choice relaxation. A job whose use exceeds an agent's whole capacity can
+// never go there; leaving that option out keeps the bound valid and makes
+// it stronger. The repair maps a job block's chosen option back to its
+// agent with the same list.
+func jobAgents(in *Instance, j int) []int {
+	idx := make([]int, 0, in.Agents)
+	for i := 0; i < in.Agents; i++ {
+		if in.Use[i][j] <= in.Capacity[i] {
+			idx = append(idx, i)
+		}
+	}
+	return idx
+}
+
+// plan computes the value and row use of an assignment in exact integer
+// arithmetic; it returns nil for an infeasible assignment.
+func (r *repairer) plan(assign []int) *decomp.Plan {
+	in := r.in
+	load := make([]int64, in.Agents)
+	var value int64
+	for j, i := range assign {
+		if i < 0 || i >= in.Agents {
+			return nil
+		}
+		load[i] += in.Use[i][j]
+		value += in.Cost[i][j]
+	}
+	for i, l := range load {
+		if l > in.Capacity[i] {
+			return nil
+		}
+	}
+	p := &decomp.Plan{Value: float64(value), Detail: append([]int(nil), assign...)}
+	if r.opt.Relaxation == KnapsackRelaxation {
+		p.Use = make([]float64, in.Jobs)
+		for j := range p.Use {
+			p.Use[j] = 1
+		}
+	} else {
+		p.Use = make([]float64, in.Agents)
+		for i, l := range load {
+			p.Use[i] = float64(l)
+		}
+	}
+	return p
+}
