@@ -3,6 +3,7 @@ package lotsizing
 import (
 	"context"
 	"math"
+	"math/rand/v2"
 
 	"pincer/decomp"
 )
@@ -178,7 +179,50 @@ func (r *repairer) Repair(ctx context.Context, in *decomp.RepairInput) (*decomp.
 	}
 	s.recomputeLoad()
 	s.search(ctx, r.moves)
-	sch := scheduleOf(inst, s.x, r.overtime)
+	bestX, bestCost := s.clone(), s.total()
+	// The best plan so far is a second starting point.
+	if in.Best != nil {
+		if b, ok := in.Best.Detail.(*Schedule); ok && len(b.Production) == n {
+			for i := range s.x {
+				copy(s.x[i], b.Production[i])
+			}
+			s.recomputeLoad()
+			if c := s.total(); c < bestCost-tol {
+				bestX, bestCost = s.clone(), c
+			}
+		}
+	}
+	// Iterated local search: kick the best plan by random lot moves and
+	// search again; a kick's outcome replaces the best only when cheaper.
+	kicks := 20
+	if in.Final {
+		kicks = 200
+	}
+	rng := rand.New(rand.NewPCG(in.Seed, 1989))
+	for k := 0; k < kicks && ctx.Err() == nil; k++ {
+		for i := range s.x {
+			copy(s.x[i], bestX[i])
+		}
+		s.recomputeLoad()
+		for m := 0; m < 1+rng.IntN(3); m++ {
+			i, t, t2 := rng.IntN(n), rng.IntN(T), rng.IntN(T)
+			if t == t2 || s.x[i][t] <= tol {
+				continue
+			}
+			q := s.x[i][t]
+			if rng.IntN(2) == 0 {
+				q /= 2
+			}
+			if _, ok := s.delta(i, t, t2, q, s.stock(i)); ok {
+				s.apply(i, t, t2, q)
+			}
+		}
+		s.search(ctx, r.moves/4)
+		if c := s.total(); c < bestCost-tol {
+			bestX, bestCost = s.clone(), c
+		}
+	}
+	sch := scheduleOf(inst, bestX, r.overtime)
 	if sch == nil {
 		return nil, nil
 	}
@@ -187,6 +231,32 @@ func (r *repairer) Repair(ctx context.Context, in *decomp.RepairInput) (*decomp.
 		use[t] = sch.Load[t] - sch.Overtime[t]
 	}
 	return &decomp.Plan{Value: sch.Cost, Use: use, Detail: sch}, nil
+}
+
+func (s *state) clone() [][]float64 {
+	c := make([][]float64, len(s.x))
+	for i := range s.x {
+		c[i] = append([]float64(nil), s.x[i]...)
+	}
+	return c
+}
+
+// total is the plan's cost with excess capacity priced at the penalties.
+func (s *state) total() float64 {
+	c := 0.0
+	for i, it := range s.in.Items {
+		inv := s.stock(i)
+		for t := range inv {
+			if s.x[i][t] > tol {
+				c += it.SetupCost
+			}
+			c += it.Holding * math.Max(inv[t], 0)
+		}
+	}
+	for t := range s.load {
+		c += s.excessCost(t, s.load[t])
+	}
+	return c
 }
 
 func (s *state) recomputeLoad() {
