@@ -6,6 +6,7 @@ import (
 	"os"
 	"path/filepath"
 	"strconv"
+	"strings"
 	"testing"
 
 	"pincer/decomp"
@@ -84,4 +85,36 @@ func TestReferenceValues(t *testing.T) {
 	if count > 0 {
 		t.Logf("%d instances: mean deviation %.2f%%, max %.2f%%, mean bound gap %.2f%%", count, 100*sumDev/float64(count), 100*maxDev, 100*sumGap/float64(count))
 	}
+}
+
+type reference struct {
+	file  string
+	items int
+	value float64
+}
+
+// readReference returns the optimal rows of reference.csv.
+func readReference(tb testing.TB, dir string) []reference {
+	f, err := os.Open(filepath.Join(dir, "reference.csv"))
+	if err != nil {
+		tb.Skipf("reference.csv absent: %v", err)
+	}
+	defer f.Close()
+	recs, err := csv.NewReader(f).ReadAll()
+	if err != nil {
+		tb.Fatal(err)
+	}
+	var out []reference
+	for _, rec := range recs[1:] {
+		if strings.TrimSpace(rec[5]) != "optimal" {
+			continue
+		}
+		v, err1 := strconv.ParseFloat(rec[4], 64)
+		n, err2 := strconv.Atoi(rec[2])
+		if err1 != nil || err2 != nil {
+			tb.Fatalf("reference.csv row %v: %v %v", rec, err1, err2)
+		}
+		out = append(out, reference{rec[0], n, v})
+	}
+	return out
 }
