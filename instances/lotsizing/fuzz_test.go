@@ -43,3 +43,39 @@ func FuzzReadTTM(f *testing.F) {
 		}
 	})
 }
+
+func FuzzReadCSVFolder(f *testing.F) {
+	f.Add([]byte(goodFolder["items.csv"]), []byte(goodFolder["demand.csv"]), []byte(goodFolder["capacity.csv"]))
+	f.Add([]byte("id,unit_time\n"), []byte("item,period,quantity\n\"A,1"), []byte("period,capacity\n1,-1\n"))
+	f.Fuzz(func(t *testing.T, items, demand, capacity []byte) {
+		tabs := make([]*csvTable, 3)
+		for k, c := range []struct {
+			data     []byte
+			file     string
+			req, opt []string
+		}{{items, "items.csv", []string{"id", "unit_time", "setup_time", "setup_cost", "holding_cost"}, []string{"name", "initial_stock"}},
+			{capacity, "capacity.csv", []string{"period", "capacity"}, []string{"overtime_cost"}},
+			{demand, "demand.csv", []string{"item", "period", "quantity"}, nil}} {
+			tb, err := readTable(bytes.NewReader(c.data), c.file, c.req, c.opt)
+			if err != nil {
+				var pe *ParseError
+				if !errors.As(err, &pe) || pe.Line < 1 || pe.Column < 1 || pe.File != c.file {
+					t.Fatalf("error %v is not a positioned *ParseError", err)
+				}
+				return
+			}
+			tabs[k] = tb
+		}
+		in, err := fromTables("fuzz", tabs[0], tabs[1], tabs[2])
+		if err != nil {
+			var pe *ParseError
+			if !errors.As(err, &pe) || pe.Line < 1 || pe.Column < 1 {
+				t.Fatalf("error %v is not a positioned *ParseError", err)
+			}
+			return
+		}
+		if err := in.Validate(); err != nil {
+			t.Fatalf("accepted an invalid instance: %v", err)
+		}
+	})
+}
