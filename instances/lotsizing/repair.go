@@ -194,9 +194,9 @@ func (r *repairer) Repair(ctx context.Context, in *decomp.RepairInput) (*decomp.
 	}
 	// Iterated local search: kick the best plan by random lot moves and
 	// search again; a kick's outcome replaces the best only when cheaper.
-	kicks := 20
+	kicks := 60
 	if in.Final {
-		kicks = 200
+		kicks = 1000
 	}
 	rng := rand.New(rand.NewPCG(in.Seed, 1989))
 	for k := 0; k < kicks && ctx.Err() == nil; k++ {
