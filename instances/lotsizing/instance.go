@@ -25,6 +25,27 @@
 // exactly when the price exceeds the overtime cost, so prices above the
 // overtime cost are penalised and the subgradient drives them back.
 //
+// Repair: the relaxed plan (every item's Wagner-Whitin lots at the round's
+// prices) is made capacity-feasible and improved by one local search over
+// lot moves, in the spirit of the smoothing of Trigeiro et al. (1989): a
+// move shifts part or all of a lot of one item to an earlier period, or to
+// a later one where the stock in between allows; whole-lot moves merge lots
+// and drop setups, partial moves split lots; quantities tried empty the
+// lot, clear the source period's excess or fill the target's slack. Moves
+// are judged by their exact cost change (setup, holding and excess
+// capacity, priced at the overtime cost or at a large penalty where no
+// overtime is allowed), computed incrementally from one item and two
+// periods. An iterated search kicks the best plan with seeded random lot
+// moves; the number of candidate moves and kicks bounds the effort. When
+// excess remains where no overtime is allowed the repair reports no plan
+// for that round; the engine keeps the best plan found.
+//
+// Block numbering: blocks 0..n-1 are the items (variables as documented on
+// subproblem.LotSizing: Var t setup, T+t production, 2T+t stock); the
+// overtime blocks follow, one per period that allows overtime (Var 0 is
+// o_t). Row t is the capacity row of period t; its price at the best bound
+// is the period's capacity shadow price.
+//
 // Plans are decision support: they meet the model's rows, not every
 // concern of a planner.
 package lotsizing
