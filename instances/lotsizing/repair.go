@@ -1,0 +1,313 @@
+package lotsizing
+
+import (
+	"context"
+	"math"
+	"math/rand/v2"
+
+	"pincer/decomp"
+)
+
+// Schedule is a production plan: per item and period the setup, the
+// quantity made and the stock at the end of the period; per period the
+// load, the overtime used and the plan's cost.
+type Schedule struct {
+	Setup      [][]bool    `json:"setup"`
+	Production [][]float64 `json:"production"`
+	Inventory  [][]float64 `json:"inventory"`
+	Load       []float64   `json:"load"`
+	Overtime   []float64   `json:"overtime"`
+	Cost       float64     `json:"cost"`
+}
+
+type repairer struct {
+	in       *Instance
+	overtime []float64
+	moves    int
+}
+
+const tol = 1e-9
+
+// state is a plan under local search. Setups are implied by production.
+type state struct {
+	in   *Instance
+	pen  []float64 // cost per capacity unit beyond capacity
+	x    [][]float64
+	load []float64
+}
+
+func (s *state) excessCost(t int, load float64) float64 {
+	if e := load - s.in.Capacity[t]; e > tol {
+		return s.pen[t] * e
+	}
+	return 0
+}
+
+// inventory of item i at the end of period u.
+func (s *state) stock(i int) []float64 {
+	T := s.in.Periods()
+	inv := make([]float64, T)
+	v := s.in.Items[i].InitialStock
+	for u := 0; u < T; u++ {
+		v += s.x[i][u] - s.in.Demand[i][u]
+		inv[u] = v
+	}
+	return inv
+}
+
+// delta is the cost change of moving q units of item i from t to t2
+// (incremental: one item, two periods); ok is false when the move breaks
+// the demand of item i (forward moves need stock in t..t2-1).
+func (s *state) delta(i, t, t2 int, q float64, inv []float64) (float64, bool) {
+	it := &s.in.Items[i]
+	if t2 > t {
+		for u := t; u < t2; u++ {
+			if inv[u] < q-tol {
+				return 0, false
+			}
+		}
+	}
+	d := it.Holding * q * float64(t-t2)
+	lt, lt2 := s.load[t]-it.UnitTime*q, s.load[t2]+it.UnitTime*q
+	if q >= s.x[i][t]-tol {
+		d -= it.SetupCost
+		lt -= it.SetupTime
+	}
+	if s.x[i][t2] <= tol {
+		d += it.SetupCost
+		lt2 += it.SetupTime
+	}
+	d += s.excessCost(t, lt) - s.excessCost(t, s.load[t]) + s.excessCost(t2, lt2) - s.excessCost(t2, s.load[t2])
+	return d, true
+}
+
+func (s *state) apply(i, t, t2 int, q float64) {
+	it := &s.in.Items[i]
+	if q >= s.x[i][t]-tol {
+		q = s.x[i][t]
+		s.load[t] -= it.SetupTime
+	}
+	if s.x[i][t2] <= tol {
+		s.load[t2] += it.SetupTime
+	}
+	s.x[i][t] -= q
+	s.x[i][t2] += q
+	s.load[t] -= it.UnitTime * q
+	s.load[t2] += it.UnitTime * q
+}
+
+// search runs first-improvement local search over lot moves (backward and
+// forward, whole lots = merge or drop a setup, partial lots = split),
+// trying quantities that empty the lot, clear the source's excess or fill
+// the target's slack. It evaluates at most budget candidates.
+func (s *state) search(ctx context.Context, budget int) {
+	n, T := len(s.in.Items), s.in.Periods()
+	improved := true
+	for improved && budget > 0 {
+		improved = false
+		if ctx.Err() != nil {
+			return
+		}
+		for i := 0; i < n && budget > 0; i++ {
+			it := &s.in.Items[i]
+			inv := s.stock(i)
+			for t := T - 1; t >= 0 && budget > 0; t-- {
+				if s.x[i][t] <= tol {
+					continue
+				}
+				for t2 := 0; t2 < T && budget > 0; t2++ {
+					if t2 == t || s.x[i][t] <= tol {
+						continue
+					}
+					qs := [3]float64{s.x[i][t], math.Inf(1), math.Inf(1)}
+					if it.UnitTime > 0 {
+						if e := s.load[t] - s.in.Capacity[t]; e > tol {
+							qs[1] = e / it.UnitTime
+						}
+						room := s.in.Capacity[t2] - s.load[t2]
+						if s.x[i][t2] <= tol {
+							room -= it.SetupTime
+						}
+						if room > tol {
+							qs[2] = room / it.UnitTime
+						}
+					}
+					bestD, bestQ := -1e-7, 0.0
+					for _, q := range qs {
+						if math.IsInf(q, 1) || q <= tol {
+							continue
+						}
+						q = math.Min(q, s.x[i][t])
+						budget--
+						if d, ok := s.delta(i, t, t2, q, inv); ok && d < bestD {
+							bestD, bestQ = d, q
+						}
+					}
+					if bestQ > 0 {
+						s.apply(i, t, t2, bestQ)
+						inv = s.stock(i)
+						improved = true
+					}
+				}
+			}
+		}
+	}
+}
+
+func (r *repairer) Repair(ctx context.Context, in *decomp.RepairInput) (*decomp.Plan, error) {
+	inst := r.in
+	n, T := len(inst.Items), inst.Periods()
+	s := &state{in: inst, pen: make([]float64, T), x: make([][]float64, n), load: make([]float64, T)}
+	big := 1.0
+	for _, it := range inst.Items {
+		big += it.SetupCost + it.Holding*float64(T)
+	}
+	big *= 1000
+	for t := range s.pen {
+		s.pen[t] = r.overtime[t]
+		if s.pen[t] < 0 {
+			s.pen[t] = big
+		}
+	}
+	for i := 0; i < n; i++ {
+		s.x[i] = make([]float64, T)
+		for _, e := range in.Answers[i].Primal {
+			if e.Index >= T && e.Index < 2*T {
+				s.x[i][e.Index-T] = e.Value
+			}
+		}
+	}
+	s.recomputeLoad()
+	s.search(ctx, r.moves)
+	bestX, bestCost := s.clone(), s.total()
+	// The best plan so far is a second starting point.
+	if in.Best != nil {
+		if b, ok := in.Best.Detail.(*Schedule); ok && len(b.Production) == n {
+			for i := range s.x {
+				copy(s.x[i], b.Production[i])
+			}
+			s.recomputeLoad()
+			if c := s.total(); c < bestCost-tol {
+				bestX, bestCost = s.clone(), c
+			}
+		}
+	}
+	// Iterated local search: kick the best plan by random lot moves and
+	// search again; a kick's outcome replaces the best only when cheaper.
+	kicks := 60
+	if in.Final {
+		kicks = 1000
+	}
+	rng := rand.New(rand.NewPCG(in.Seed, 1989))
+	for k := 0; k < kicks && ctx.Err() == nil; k++ {
+		for i := range s.x {
+			copy(s.x[i], bestX[i])
+		}
+		s.recomputeLoad()
+		for m := 0; m < 1+rng.IntN(3); m++ {
+			i, t, t2 := rng.IntN(n), rng.IntN(T), rng.IntN(T)
+			if t == t2 || s.x[i][t] <= tol {
+				continue
+			}
+			q := s.x[i][t]
+			if rng.IntN(2) == 0 {
+				q /= 2
+			}
+			if _, ok := s.delta(i, t, t2, q, s.stock(i)); ok {
+				s.apply(i, t, t2, q)
+			}
+		}
+		s.search(ctx, r.moves/4)
+		if c := s.total(); c < bestCost-tol {
+			bestX, bestCost = s.clone(), c
+		}
+	}
+	sch := scheduleOf(inst, bestX, r.overtime)
+	if sch == nil {
+		return nil, nil
+	}
+	use := make([]float64, T)
+	for t := range use {
+		use[t] = sch.Load[t] - sch.Overtime[t]
+	}
+	return &decomp.Plan{Value: sch.Cost, Use: use, Detail: sch}, nil
+}
+
+func (s *state) clone() [][]float64 {
+	c := make([][]float64, len(s.x))
+	for i := range s.x {
+		c[i] = append([]float64(nil), s.x[i]...)
+	}
+	return c
+}
+
+// total is the plan's cost with excess capacity priced at the penalties.
+func (s *state) total() float64 {
+	c := 0.0
+	for i, it := range s.in.Items {
+		inv := s.stock(i)
+		for t := range inv {
+			if s.x[i][t] > tol {
+				c += it.SetupCost
+			}
+			c += it.Holding * math.Max(inv[t], 0)
+		}
+	}
+	for t := range s.load {
+		c += s.excessCost(t, s.load[t])
+	}
+	return c
+}
+
+func (s *state) recomputeLoad() {
+	for t := range s.load {
+		s.load[t] = 0
+		for i, it := range s.in.Items {
+			if s.x[i][t] > tol {
+				s.load[t] += it.SetupTime + it.UnitTime*s.x[i][t]
+			}
+		}
+	}
+}
+
+// scheduleOf builds a Schedule from production quantities, or nil when
+// demand is unmet or capacity is exceeded where no overtime is allowed.
+func scheduleOf(in *Instance, x [][]float64, overtime []float64) *Schedule {
+	n, T := len(in.Items), in.Periods()
+	sch := &Schedule{Setup: make([][]bool, n), Production: make([][]float64, n), Inventory: make([][]float64, n), Load: make([]float64, T), Overtime: make([]float64, T)}
+	for i, it := range in.Items {
+		sch.Setup[i] = make([]bool, T)
+		sch.Production[i] = make([]float64, T)
+		sch.Inventory[i] = make([]float64, T)
+		v := it.InitialStock
+		for t := 0; t < T; t++ {
+			q := x[i][t]
+			if q <= tol {
+				q = 0
+			}
+			v += q - in.Demand[i][t]
+			if v < -1e-7 {
+				return nil
+			}
+			v = math.Max(v, 0)
+			sch.Production[i][t], sch.Inventory[i][t] = q, v
+			if q > 0 {
+				sch.Setup[i][t] = true
+				sch.Cost += it.SetupCost
+				sch.Load[t] += it.SetupTime + it.UnitTime*q
+			}
+			sch.Cost += it.Holding * v
+		}
+	}
+	for t := 0; t < T; t++ {
+		e := sch.Load[t] - in.Capacity[t]
+		if e > 1e-7*math.Max(1, in.Capacity[t]) {
+			if overtime[t] < 0 {
+				return nil
+			}
+			sch.Overtime[t] = e
+			sch.Cost += overtime[t] * e
+		}
+	}
+	return sch
+}
