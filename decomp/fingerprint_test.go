@@ -32,7 +32,24 @@ func runFingerprint(t *testing.T, p *decomp.Problem, s decomp.Settings) string {
 	return fmt.Sprintf("%s rounds=%d bound=%v plan=%v hash=%x", res.Status, res.Rounds, res.Bound, pv, h.Sum64())
 }
 
+// TestFingerprint: the expected lines were recorded from the engine before
+// the run became a State value (commit 2d38dca); the Subgradient runs must
+// stay bit-identical (status, rounds, bound, plan and a hash of the whole
+// history and prices).
 func TestFingerprint(t *testing.T) {
+	if testing.Short() {
+		t.Skip("long: runs GAP and facility problems")
+	}
+	want := []string{
+		"gap c knapsack: integer-closed rounds=120 bound=1473.1114454275682 plan=1474 hash=da0f4dc2f1b139cf",
+		"gap c choice: round-limit rounds=200 bound=1460.2020064877292 plan=1474 hash=3be21a773acefbc5",
+		"gap d knapsack: round-limit rounds=200 bound=6229.104498399183 plan=6266 hash=c4ac7a8b10a91293",
+		"gap d choice: round-limit rounds=200 bound=6201.310906346376 plan=6279 hash=b00ca2cdfd1e1c93",
+		"cflp: search-closed rounds=105 bound=14508.07060003022 plan=14508.07060003022 hash=5577643f1447be7d",
+		"many: round-limit rounds=100 bound=626568.5008650353 plan=NaN hash=e2347a6443467298",
+	}
+	var got []string
+
 	for _, kind := range []byte{'c', 'd'} {
 		in, err := gap.Generate(kind, 10, 100, 7)
 		if err != nil {
@@ -43,7 +60,7 @@ func TestFingerprint(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			t.Logf("gap %c %v: %s", kind, rel, runFingerprint(t, p, decomp.Settings{Rounds: 200, Seed: 3, Gap: -1, Evaluator: decomp.Pool{Workers: 2}}))
+			got = append(got, fmt.Sprintf("gap %c %v: %s", kind, rel, runFingerprint(t, p, decomp.Settings{Rounds: 200, Seed: 3, Gap: -1, Evaluator: decomp.Pool{Workers: 2}})))
 		}
 	}
 	in, err := cflp.Generate(30, 80, 3, 5)
@@ -54,6 +71,11 @@ func TestFingerprint(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	t.Logf("cflp: %s", runFingerprint(t, p, decomp.Settings{Rounds: 150, Seed: 3, Gap: -1, Evaluator: decomp.Pool{Workers: 2}}))
-	t.Logf("many: %s", runFingerprint(t, manyBlocks(2000, 30), decomp.Settings{Rounds: 100, Seed: 1}))
+	got = append(got, fmt.Sprintf("cflp: %s", runFingerprint(t, p, decomp.Settings{Rounds: 150, Seed: 3, Gap: -1, Evaluator: decomp.Pool{Workers: 2}})))
+	got = append(got, fmt.Sprintf("many: %s", runFingerprint(t, manyBlocks(2000, 30), decomp.Settings{Rounds: 100, Seed: 1})))
+	for i := range want {
+		if i >= len(got) || got[i] != want[i] {
+			t.Errorf("run %d:\n got %v\nwant %s", i, got[i:min(i+1, len(got))], want[i])
+		}
+	}
 }
