@@ -87,7 +87,8 @@ type Settings struct {
 	RepairEvery int           // repair on round 1 and every this many rounds; 0 means 5
 	Seed        uint64        // passed (mixed with the round) to the repairer
 	Method      Method        // price-update rule; nil means a fresh Subgradient
-	Evaluator   Evaluator     // block evaluation; nil means Pool{} (GOMAXPROCS workers)
+	Evaluator   Evaluator     // block evaluation; nil means Pool{Workers: Workers}
+	Workers     int           // worker budget of the default Pool; 0 means GOMAXPROCS
 	Observer    Observer      // sees every round; nil means none
 	// FinalRepairTime is kept for the last repair: with a time limit the
 	// rounds stop this long before it, so that the whole run fits in Time;
@@ -217,7 +218,7 @@ func withDefaults(s Settings) Settings {
 		s.Method = &Subgradient{}
 	}
 	if s.Evaluator == nil {
-		s.Evaluator = Pool{}
+		s.Evaluator = Pool{Workers: s.Workers}
 	}
 	if s.FinalRepairTime <= 0 {
 		s.FinalRepairTime = 2 * time.Second
