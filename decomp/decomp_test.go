@@ -303,3 +303,21 @@ func TestRoundingNoiseIsNotASubgradient(t *testing.T) {
 		t.Fatalf("status %v, want prices-settled", res.Status)
 	}
 }
+
+// TestChunks: the ranges cover 0..n-1 once, in order (checked by counting).
+func TestChunks(t *testing.T) {
+	for _, n := range []int{0, 1, 7, 100, 12345} {
+		for _, w := range []int{0, 1, 2, 8} {
+			next := 0
+			for _, c := range decomp.Chunks(n, w) {
+				if c[0] != next || c[1] <= c[0] {
+					t.Fatalf("n=%d w=%d: range %v after %d", n, w, c, next)
+				}
+				next = c[1]
+			}
+			if next != n {
+				t.Fatalf("n=%d w=%d: covered %d", n, w, next)
+			}
+		}
+	}
+}

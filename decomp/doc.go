@@ -54,4 +54,61 @@
 // records the bound, calls the repairer on schedule, and asks the [Method]
 // for new prices. Limits and stopping rules live here once, for every
 // method.
+//
+// # Run state, checkpoints and resume
+//
+// A run is a value, [State]: round counter, idle count, status, prices,
+// best prices, best bound, best plan, a repair outcome waiting to be
+// merged, history and the price rule's own state ([StatefulMethod];
+// [Subgradient] implements it). Solve starts a state, makes one round at a
+// time over it and finishes it (merge the repair in flight, last repair,
+// result). One function, stopRule, judges every finished round.
+//
+// Settings.Checkpoint is handed the state every Settings.CheckpointEvery
+// rounds and when the run stops early, at a round boundary with no repair
+// in flight (a running repair is waited for; its outcome is kept in the
+// state and merged at the next repair round, exactly when the overlapped
+// repair would have been). [EncodeCheckpoint] writes a [Checkpoint] (state
+// plus the caller's instance content hash and settings fingerprint) as
+//
+//	magic "PINCRUN\x00" · version uint16 (1) · payload length uint64 ·
+//	gob payload · CRC-32 (IEEE) of the payload          (little endian)
+//
+// with Plan.Detail serialised by the family's [PlanCodec] (Problem.Plans).
+// [DecodeCheckpoint] refuses damaged, truncated, foreign or newer data
+// with an error wrapping [ErrCheckpoint], never a panic;
+// [WriteCheckpointFile] writes atomically (temporary file in the same
+// folder, fsync, rename) and [ReadCheckpointFile] names the file in its
+// errors. [Checkpoint.Match] returns a [*MismatchError] for another
+// instance or other settings. [Resume] continues a run: with the same seed
+// and round limit it ends with the same plan value, bound, rounds, prices
+// and history as the uninterrupted run, provided the repairer keeps no
+// memory across calls (a repairer with memory must be rebuilt to the same
+// memory, or the resumed plans may differ; bounds stay valid either way).
+//
+// The in-round repair goroutine is owned by the run: it is cancelled and
+// waited for on every return path, so nothing of a run works after Solve
+// returns.
+//
+// # Stop reasons
+//
+//	running            the zero Status: the run has not stopped
+//	gap-reached        relative gap at or below Settings.Gap
+//	integer-closed     the plan meets the (rounded) bound: proved optimal
+//	prices-settled     the projected subgradient vanished: dual optimal prices
+//	round-limit        Settings.Rounds rounds made (early)
+//	time-limit         Settings.Time ran out, or the caller's deadline (early)
+//	stalled            no better bound or plan for Settings.StallRounds rounds (early)
+//	interrupted        the caller cancelled the context (early)
+//	proved-infeasible  the bound passed Problem.PlanLimit: no feasible plan
+//	search-closed      the repairer's own exact search proved its plan (Plan.Proved)
+//	method-stopped     the price rule ended the run (Step.Stop); Result.Reason says why
+//
+// Early stops can be resumed from their last checkpoint.
+//
+// # Fixings
+//
+// Problem.Fixings fix block variables for a whole run; every [Request]
+// carries them, sorted by [SortFixings], and a block must honour them
+// exactly or report [ErrInfeasible].
 package decomp

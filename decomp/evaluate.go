@@ -49,17 +49,18 @@ func (p Pool) Evaluate(ctx context.Context, blocks []Block, req *Request, answer
 		}
 		return nil
 	}
-	chunk := p.Chunk
-	if chunk <= 0 {
-		chunk = (n + 8*workers - 1) / (8 * workers)
-		if chunk < 1 {
-			chunk = 1
+	var chunks [][2]int
+	if p.Chunk > 0 {
+		for lo := 0; lo < n; lo += p.Chunk {
+			chunks = append(chunks, [2]int{lo, min(lo+p.Chunk, n)})
 		}
+	} else {
+		chunks = Chunks(n, workers)
 	}
 	g, gctx := errgroup.WithContext(ctx)
 	g.SetLimit(workers)
-	for lo := 0; lo < n; lo += chunk {
-		hi := min(lo+chunk, n)
+	for _, c := range chunks {
+		lo, hi := c[0], c[1]
 		g.Go(func() error {
 			own := *req
 			own.Workers = max(1, workers/n)
@@ -83,4 +84,20 @@ func solveOne(ctx context.Context, blocks []Block, k int, req *Request, answers 
 		return fmt.Errorf("block %d: %w", k, err)
 	}
 	return nil
+}
+
+// Chunks splits n items into contiguous half-open ranges [lo, hi), about
+// eight per worker (so that uneven items still balance), in order. It is
+// the one chunking rule for every parallel loop over blocks or items.
+func Chunks(n, workers int) [][2]int {
+	if n <= 0 {
+		return nil
+	}
+	workers = max(1, workers)
+	chunk := max(1, (n+8*workers-1)/(8*workers))
+	out := make([][2]int, 0, (n+chunk-1)/chunk)
+	for lo := 0; lo < n; lo += chunk {
+		out = append(out, [2]int{lo, min(lo+chunk, n)})
+	}
+	return out
 }

@@ -1,6 +1,11 @@
 package decomp
 
-import "math"
+import (
+	"encoding/binary"
+	"errors"
+	"fmt"
+	"math"
+)
 
 // RoundState is what a price-update method sees after a round. Methods
 // must not modify it.
@@ -19,19 +24,44 @@ type RoundState struct {
 	// Subgradient is use − rhs, projected: components that would push a
 	// price at zero out of its valid sign are set to zero.
 	Subgradient []float64
+	// BestPrices are the prices that gave Bound.
+	BestPrices []float64
 	// Answers are the block answers of this round (for rules that use
 	// block primal answers).
 	Answers []Answer
 }
 
+// Step is what a method reports after moving the prices.
+type Step struct {
+	// Length is the step length used (recorded in the history).
+	Length float64
+	// Stop ends the run after this round with Status MethodStopped and
+	// Reason as the method's own explanation.
+	Stop   bool
+	Reason string
+}
+
 // Method updates prices between rounds. The engine projects the prices
 // onto their valid signs after every update and owns the round loop,
 // limits and bookkeeping.
+//
+// A method whose state must survive a checkpoint also implements
+// [StatefulMethod]; its state is then part of the run's [State].
 type Method interface {
 	// Init prepares the method for a problem with the given rows.
 	Init(sense Sense, rows []Row)
-	// Update moves prices in place and returns the step length used.
-	Update(s *RoundState, prices []float64) float64
+	// Update moves prices in place. It may end the run (Step.Stop) or fail;
+	// an error ends Solve with that error.
+	Update(s *RoundState, prices []float64) (Step, error)
+}
+
+// StatefulMethod is a Method whose state can be captured and restored, so
+// that a resumed run continues exactly where it stopped. UnmarshalState is
+// called after Init and must refuse data it did not write with an error.
+type StatefulMethod interface {
+	Method
+	MarshalState() ([]byte, error)
+	UnmarshalState(data []byte) error
 }
 
 // Subgradient is the classical subgradient rule with a Polyak-type step
@@ -63,8 +93,39 @@ func (m *Subgradient) Init(Sense, []Row) {
 // CurrentTheta returns the θ in use.
 func (m *Subgradient) CurrentTheta() float64 { return m.theta }
 
+// Idle returns the rounds since the last better bound, as the rule counts
+// them towards Patience.
+func (m *Subgradient) Idle() int { return m.idle }
+
+// subgradientStateTag starts a Subgradient's state (version 1).
+const subgradientStateTag = "subgrad1"
+
+// MarshalState implements StatefulMethod: θ and the idle count.
+func (m *Subgradient) MarshalState() ([]byte, error) {
+	b := make([]byte, 0, len(subgradientStateTag)+16)
+	b = append(b, subgradientStateTag...)
+	b = binary.LittleEndian.AppendUint64(b, math.Float64bits(m.theta))
+	b = binary.LittleEndian.AppendUint64(b, uint64(m.idle))
+	return b, nil
+}
+
+// UnmarshalState implements StatefulMethod.
+func (m *Subgradient) UnmarshalState(data []byte) error {
+	n := len(subgradientStateTag)
+	if len(data) != n+16 || string(data[:n]) != subgradientStateTag {
+		return errors.New("decomp: not a subgradient rule's state")
+	}
+	theta := math.Float64frombits(binary.LittleEndian.Uint64(data[n:]))
+	idle := binary.LittleEndian.Uint64(data[n+8:])
+	if !(theta > 0) || math.IsInf(theta, 0) || idle > math.MaxInt32 {
+		return fmt.Errorf("decomp: subgradient state out of range (θ %v, idle %d)", theta, idle)
+	}
+	m.theta, m.idle = theta, int(idle)
+	return nil
+}
+
 // Update implements Method.
-func (m *Subgradient) Update(s *RoundState, prices []float64) float64 {
+func (m *Subgradient) Update(s *RoundState, prices []float64) (Step, error) {
 	patience := m.Patience
 	if patience <= 0 {
 		patience = 20
@@ -87,7 +148,7 @@ func (m *Subgradient) Update(s *RoundState, prices []float64) float64 {
 		norm2 += g * g
 	}
 	if norm2 == 0 {
-		return 0
+		return Step{}, nil
 	}
 	t := m.theta * math.Abs(s.Target-s.Value) / norm2
 	dir := 1.0
@@ -97,5 +158,5 @@ func (m *Subgradient) Update(s *RoundState, prices []float64) float64 {
 	for r, g := range s.Subgradient {
 		prices[r] += dir * t * g
 	}
-	return t
+	return Step{Length: t}, nil
 }

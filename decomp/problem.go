@@ -238,6 +238,20 @@ type Problem struct {
 	HasPlanLimit bool
 	// Repair is optional; without it the run gives a bound only.
 	Repair Repairer
+	// Fixings fix block variables for the whole run (a search node's
+	// child problem); every Request carries them, sorted by SortFixings.
+	Fixings []Fixing
+	// Plans serialises Plan.Detail for checkpoints; nil when the family's
+	// plans carry no detail or are not checkpointed.
+	Plans PlanCodec
+}
+
+// PlanCodec serialises a family's Plan.Detail, so that a checkpoint can
+// hold the best plan. DecodePlan must refuse data it did not write with an
+// error, never panic.
+type PlanCodec interface {
+	EncodePlan(detail any) ([]byte, error)
+	DecodePlan(data []byte) (any, error)
 }
 
 // Validate checks the problem's shape.

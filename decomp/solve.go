@@ -13,8 +13,10 @@ type Status int8
 
 // Stop reasons.
 const (
+	// Running: the run has not stopped (the zero Status).
+	Running Status = iota
 	// GapReached: the relative gap fell to Settings.Gap or below.
-	GapReached Status = iota + 1
+	GapReached
 	// IntegerClosed: the plan's value meets the bound (rounded, for an
 	// integral objective), so the plan is optimal.
 	IntegerClosed
@@ -35,6 +37,9 @@ const (
 	// SearchClosed: the repairer proved its plan optimal by an exact search
 	// (Plan.Proved).
 	SearchClosed
+	// MethodStopped: the price-update method ended the run (Step.Stop);
+	// State.Reason and Result.Reason carry its own explanation.
+	MethodStopped
 )
 
 // String returns the stop reason as used in reports.
@@ -58,6 +63,10 @@ func (s Status) String() string {
 		return "proved-infeasible"
 	case SearchClosed:
 		return "search-closed"
+	case Running:
+		return "running"
+	case MethodStopped:
+		return "method-stopped"
 	}
 	return fmt.Sprintf("status(%d)", int(s))
 }
@@ -78,7 +87,8 @@ type Settings struct {
 	RepairEvery int           // repair on round 1 and every this many rounds; 0 means 5
 	Seed        uint64        // passed (mixed with the round) to the repairer
 	Method      Method        // price-update rule; nil means a fresh Subgradient
-	Evaluator   Evaluator     // block evaluation; nil means Pool{} (GOMAXPROCS workers)
+	Evaluator   Evaluator     // block evaluation; nil means Pool{Workers: Workers}
+	Workers     int           // worker budget of the default Pool; 0 means GOMAXPROCS
 	Observer    Observer      // sees every round; nil means none
 	// FinalRepairTime is kept for the last repair: with a time limit the
 	// rounds stop this long before it, so that the whole run fits in Time;
@@ -86,6 +96,15 @@ type Settings struct {
 	// tenth of Time, at least 0.2 s and at most 2 s (2 s without a time
 	// limit).
 	FinalRepairTime time.Duration
+	// Checkpoint, when set, is handed the run's state every CheckpointEvery
+	// rounds (0: never on schedule) and once more when the run stops early
+	// (interruption, time, round or stall limit), always at a round
+	// boundary with no repair in flight; it is typically a closure calling
+	// WriteCheckpointFile. The state is valid only during the call. A
+	// checkpoint waits for the running repair, so frequent checkpoints
+	// cost the overlap of repair and rounds, never reproducibility.
+	Checkpoint      func(*State) error
+	CheckpointEvery int
 }
 
 // Progress is what an observer sees after each round.
@@ -141,6 +160,8 @@ type RowReport struct {
 // best bound and the best plan seen.
 type Result struct {
 	Status Status
+	// Reason is the method's own explanation when Status is MethodStopped.
+	Reason string
 	// Proved reports that the plan is optimal: it meets the bound (within
 	// 1e-9 relative, or exactly after rounding an integral objective).
 	Proved bool
@@ -159,15 +180,27 @@ type Result struct {
 }
 
 // Solve runs Lagrangian rounds on p until a stopping rule fires. It
-// returns an error only for an invalid problem or a failing block or
-// repairer; cancellation of ctx is a normal stop (Status Interrupted).
+// returns an error only for an invalid problem or a failing block,
+// repairer or method; cancellation of ctx is a normal stop (Status
+// Interrupted).
 func Solve(ctx context.Context, p *Problem, s Settings) (*Result, error) {
+	return Resume(ctx, p, s, nil)
+}
+
+// Resume continues a run from a state captured by a checkpoint (nil
+// starts afresh, as Solve). With the same problem, seed and round limit the
+// resumed run ends with the same plan value, bound, rounds and prices as
+// the uninterrupted run. A state whose Status is early (see Status.Early)
+// is reopened; any other stopped state is only finished.
+func Resume(ctx context.Context, p *Problem, s Settings, st *State) (*Result, error) {
 	if err := p.Validate(); err != nil {
 		return nil, err
 	}
-	start := time.Now()
 	s = withDefaults(s)
-	run := &runner{p: p, s: s, start: start}
+	run := &runner{p: p, s: s, start: time.Now()}
+	if err := run.begin(st); err != nil {
+		return nil, err
+	}
 	return run.loop(ctx)
 }
 
@@ -185,7 +218,7 @@ func withDefaults(s Settings) Settings {
 		s.Method = &Subgradient{}
 	}
 	if s.Evaluator == nil {
-		s.Evaluator = Pool{}
+		s.Evaluator = Pool{Workers: s.Workers}
 	}
 	if s.FinalRepairTime <= 0 {
 		s.FinalRepairTime = 2 * time.Second
@@ -200,21 +233,62 @@ type runner struct {
 	p     *Problem
 	s     Settings
 	start time.Time
+	st    *State
 
-	prices, bestPrices []float64
-	answers            []Answer
-	sub                []float64
-	scale              []float64 // per row: |rhs| + Σ |use|, the size of its rounding noise
-	bound              float64
-	hasBound           bool
-	plan               *Plan
-	planProved         bool
-	pending            chan repairOutcome // the repair running, if any
-	seen               []float64          // this round's prices, for the observer
-	history            []RoundRecord
+	answers       []Answer
+	sub           []float64
+	scale         []float64 // per row: |rhs| + Σ |use|, the size of its rounding noise
+	req           *Request
+	pending       chan repairOutcome // the repair running, if any
+	cancelPending context.CancelFunc
+	seen          []float64 // this round's prices, for the observer
+	evaluated     bool      // answers hold a round of this call
 }
 
-func (r *runner) loop(parent context.Context) (*Result, error) {
+// begin sets up the state: fresh, or restored from st.
+func (r *runner) begin(st *State) error {
+	p, s := r.p, r.s
+	nrows := len(p.Rows)
+	s.Method.Init(p.Sense, p.Rows)
+	fix := append([]Fixing(nil), p.Fixings...)
+	if err := SortFixings(fix); err != nil {
+		return err
+	}
+	r.req = &Request{Sense: p.Sense, Fixings: fix}
+	r.answers = make([]Answer, len(p.Blocks))
+	r.sub = make([]float64, nrows)
+	if st == nil {
+		st = &State{Prices: make([]float64, nrows)}
+		if p.Prices != nil {
+			copy(st.Prices, p.Prices)
+		}
+		Project(p.Sense, p.Rows, st.Prices)
+		st.BestPrices = append([]float64(nil), st.Prices...)
+		r.st = st
+		return nil
+	}
+	if len(st.Prices) != nrows || len(st.BestPrices) != nrows {
+		return fmt.Errorf("decomp: state has %d prices for %d rows", len(st.Prices), nrows)
+	}
+	st = st.clone()
+	if st.Status.Early() {
+		st.Status, st.Reason = Running, ""
+	}
+	if sm, ok := s.Method.(StatefulMethod); ok && st.Method != nil {
+		if err := sm.UnmarshalState(st.Method); err != nil {
+			return fmt.Errorf("decomp: restoring the price rule: %w", err)
+		}
+	} else if st.Method != nil {
+		return errors.New("decomp: the state holds a price rule's state but the method cannot restore it")
+	}
+	r.st = st
+	return nil
+}
+
+func (r *runner) loop(parent context.Context) (res *Result, err error) {
+	// The repair running in the background is ours: cancelled and waited
+	// for on every return path.
+	defer r.dropRepair()
 	// hard ends the whole run; ctx ends the rounds, leaving room for the
 	// last repair inside the time limit.
 	hard, ctx := parent, parent
@@ -226,128 +300,188 @@ func (r *runner) loop(parent context.Context) (*Result, error) {
 		ctx, cancelRounds = context.WithDeadline(hard, r.start.Add(r.s.Time-reserve))
 		defer cancelRounds()
 	}
-	p, s := r.p, r.s
-	nrows := len(p.Rows)
-	r.prices = make([]float64, nrows)
-	if p.Prices != nil {
-		copy(r.prices, p.Prices)
-	}
-	Project(p.Sense, p.Rows, r.prices)
-	r.bestPrices = append([]float64(nil), r.prices...)
-	r.answers = make([]Answer, len(p.Blocks))
-	r.sub = make([]float64, nrows)
-	s.Method.Init(p.Sense, p.Rows)
-	req := &Request{Sense: p.Sense}
-	idle := 0
-	status := Status(0)
-	round := 0
-	for status == 0 {
-		if ctx.Err() != nil {
-			status = r.stopReason(parent)
-			break
+	st := r.st
+	for st.Status == Running {
+		if err := r.round(ctx, parent); err != nil {
+			return nil, err
 		}
-		if s.Rounds > 0 && round >= s.Rounds {
-			status = RoundLimit
-			break
-		}
-		round++
-		req.Prices = r.prices
-		if err := s.Evaluator.Evaluate(ctx, p.Blocks, req, r.answers); err != nil {
-			if ctx.Err() != nil {
-				round--
-				status = r.stopReason(parent)
-				break
-			}
-			return nil, fmt.Errorf("decomp: round %d: %w", round, err)
-		}
-		value := r.reduce()
-		improved := false
-		if !r.hasBound || p.Sense.Better(r.bound, value) {
-			r.bound, r.hasBound = value, true
-			copy(r.bestPrices, r.prices)
-			improved = true
-		}
-		planImproved := false
-		if round == 1 || round%s.RepairEvery == 0 {
-			var err error
-			if planImproved, err = r.collectRepair(); err != nil {
+		if st.Status == Running && r.s.Checkpoint != nil && r.s.CheckpointEvery > 0 && st.Round%r.s.CheckpointEvery == 0 {
+			if err := r.checkpoint(); err != nil {
 				return nil, err
 			}
-			r.launchRepair(ctx, round)
-		}
-		if improved || planImproved {
-			idle = 0
-		} else {
-			idle++
-		}
-		if s.Observer != nil {
-			r.seen = append(r.seen[:0], r.prices...)
-		}
-		norm := r.project()
-		rec := RoundRecord{Round: round, Elapsed: time.Since(r.start), Value: value, Bound: r.bound, PlanValue: math.NaN()}
-		if r.plan != nil {
-			rec.PlanValue = r.plan.Value
-		}
-		rec.Norm = norm
-		switch {
-		case p.HasPlanLimit && p.Sense.Better(p.PlanLimit, r.bound) && r.plan == nil:
-			status = ProvedInfeasible
-		case r.closed():
-			status = r.closedStatus()
-		case norm == 0:
-			status = PricesSettled
-		case idle >= s.StallRounds:
-			status = Stalled
-		}
-		if status == 0 {
-			st := &RoundState{
-				Round: round, Sense: p.Sense, Rows: p.Rows, Value: value, Bound: r.bound,
-				Improved: improved, Target: r.target(), HasPlan: r.plan != nil,
-				Subgradient: r.sub, Answers: r.answers,
-			}
-			rec.Step = s.Method.Update(st, r.prices)
-			Project(p.Sense, p.Rows, r.prices)
-			for _, v := range r.prices {
-				if math.IsNaN(v) || math.IsInf(v, 0) {
-					// A method that lost its footing restarts from the
-					// prices of the best bound.
-					copy(r.prices, r.bestPrices)
-					break
-				}
-			}
-		}
-		r.history = append(r.history, rec)
-		if s.Observer != nil {
-			s.Observer.Observe(&Progress{Record: rec, Prices: r.seen, Problem: p, HasPlan: r.plan != nil})
 		}
 	}
-	// The repair still running is merged first.
+	if r.s.Checkpoint != nil && st.Status.Early() {
+		// The last round boundary of a run that may be resumed.
+		if err := r.checkpoint(); err != nil {
+			return nil, err
+		}
+	}
+	return r.finish(parent, hard)
+}
+
+// checkpoint hands the state to the hook at a round boundary with no
+// repair in flight: a running repair is waited for and its outcome kept in
+// the state, to be merged at the next repair round as it would have been.
+func (r *runner) checkpoint() error {
+	if r.pending != nil {
+		o := <-r.pending
+		r.cancelPending()
+		r.pending, r.cancelPending = nil, nil
+		if o.err != nil && !o.cancelled {
+			return fmt.Errorf("decomp: repair in round %d: %w", o.round, o.err)
+		}
+		if o.err == nil {
+			r.st.Pending, r.st.PendingRound, r.st.HasPending = o.plan, o.round, true
+		}
+	}
+	if sm, ok := r.s.Method.(StatefulMethod); ok {
+		b, err := sm.MarshalState()
+		if err != nil {
+			return fmt.Errorf("decomp: saving the price rule: %w", err)
+		}
+		r.st.Method = b
+	}
+	r.st.Elapsed = r.elapsed()
+	if err := r.s.Checkpoint(r.st); err != nil {
+		return fmt.Errorf("decomp: checkpoint after round %d: %w", r.st.Round, err)
+	}
+	return nil
+}
+
+func (r *runner) elapsed() time.Duration { return r.st.elapsed0 + time.Since(r.start) }
+
+// round makes one round over the state, or sets the stop status.
+func (r *runner) round(ctx, parent context.Context) error {
+	p, s, st := r.p, r.s, r.st
+	if ctx.Err() != nil {
+		st.Status = r.stopReason(parent)
+		return nil
+	}
+	if s.Rounds > 0 && st.Round >= s.Rounds {
+		st.Status = RoundLimit
+		return nil
+	}
+	st.Round++
+	r.req.Prices = st.Prices
+	if err := s.Evaluator.Evaluate(ctx, p.Blocks, r.req, r.answers); err != nil {
+		if ctx.Err() != nil {
+			st.Round--
+			st.Status = r.stopReason(parent)
+			return nil
+		}
+		return fmt.Errorf("decomp: round %d: %w", st.Round, err)
+	}
+	r.evaluated = true
+	value := r.reduce(st.Prices)
+	improved := false
+	if !st.HasBound || p.Sense.Better(st.Bound, value) {
+		st.Bound, st.HasBound = value, true
+		copy(st.BestPrices, st.Prices)
+		improved = true
+	}
+	planImproved := false
+	if st.Round == 1 || st.Round%s.RepairEvery == 0 {
+		var err error
+		if planImproved, err = r.collectRepair(); err != nil {
+			return err
+		}
+		r.launchRepair(ctx, st.Round)
+	}
+	if improved || planImproved {
+		st.Idle = 0
+	} else {
+		st.Idle++
+	}
+	if s.Observer != nil {
+		r.seen = append(r.seen[:0], st.Prices...)
+	}
+	norm := r.project()
+	rec := RoundRecord{Round: st.Round, Elapsed: r.elapsed(), Value: value, Bound: st.Bound, PlanValue: math.NaN(), Norm: norm}
+	if st.Plan != nil {
+		rec.PlanValue = st.Plan.Value
+	}
+	st.Status = r.stopRule(norm)
+	if st.Status == Running {
+		rs := &RoundState{
+			Round: st.Round, Sense: p.Sense, Rows: p.Rows, Value: value, Bound: st.Bound,
+			Improved: improved, Target: r.target(), HasPlan: st.Plan != nil,
+			Subgradient: r.sub, BestPrices: st.BestPrices, Answers: r.answers,
+		}
+		step, err := s.Method.Update(rs, st.Prices)
+		if err != nil {
+			return fmt.Errorf("decomp: price update after round %d: %w", st.Round, err)
+		}
+		rec.Step = step.Length
+		if step.Stop {
+			st.Status, st.Reason = MethodStopped, step.Reason
+		}
+		Project(p.Sense, p.Rows, st.Prices)
+		for _, v := range st.Prices {
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				// A method that lost its footing restarts from the
+				// prices of the best bound.
+				copy(st.Prices, st.BestPrices)
+				break
+			}
+		}
+	}
+	st.History = append(st.History, rec)
+	if s.Observer != nil {
+		s.Observer.Observe(&Progress{Record: rec, Prices: r.seen, Problem: p, HasPlan: st.Plan != nil})
+	}
+	return nil
+}
+
+// stopRule is the one place that judges a finished round: it returns the
+// stop status, or Running to go on. Limits checked before a round (time,
+// rounds, interruption) are in round; the closing statuses after the last
+// repair come from closedStatus.
+func (r *runner) stopRule(norm float64) Status {
+	p, st := r.p, r.st
+	switch {
+	case p.HasPlanLimit && p.Sense.Better(p.PlanLimit, st.Bound) && st.Plan == nil:
+		return ProvedInfeasible
+	case r.closed():
+		return r.closedStatus()
+	case norm == 0:
+		return PricesSettled
+	case st.Idle >= r.s.StallRounds:
+		return Stalled
+	}
+	return Running
+}
+
+// finish merges the repair in flight, runs the last repair and builds the
+// result.
+func (r *runner) finish(parent, hard context.Context) (*Result, error) {
+	st, s := r.st, r.s
 	if _, err := r.collectRepair(); err != nil {
 		return nil, err
 	}
-	if r.closed() && status != ProvedInfeasible {
-		status = r.closedStatus()
+	if r.closed() && st.Status != ProvedInfeasible {
+		st.Status = r.closedStatus()
 	}
 	// A last repair from the latest answers. After an interruption it gets
 	// a short detached deadline so that a plan is not lost.
-	if round > 0 && status != IntegerClosed && status != ProvedInfeasible && status != SearchClosed {
+	if r.evaluated && st.Status != IntegerClosed && st.Status != ProvedInfeasible && st.Status != SearchClosed {
 		rctx := hard
 		if parent.Err() != nil {
 			var cancel context.CancelFunc
 			rctx, cancel = context.WithTimeout(context.WithoutCancel(parent), s.FinalRepairTime)
 			defer cancel()
 		}
-		if _, err := r.repair(rctx, round, true); err != nil {
+		if _, err := r.repair(rctx, st.Round, true); err != nil {
 			return nil, err
 		}
 		if r.closed() {
-			status = r.closedStatus()
-		} else if status != TimeLimit && parent.Err() != nil {
+			st.Status = r.closedStatus()
+		} else if st.Status != TimeLimit && parent.Err() != nil {
 			// The user stopped the last repair: say so.
-			status = Interrupted
+			st.Status = Interrupted
 		}
 	}
-	return r.result(status, round), nil
+	return r.result(), nil
 }
 
 // stopReason tells an interruption (the caller cancelled) from a time
@@ -361,7 +495,7 @@ func (r *runner) stopReason(parent context.Context) Status {
 
 // reduce sums block values and uses in block order and fills r.sub with
 // the (unprojected) subgradient; it returns L at the current prices.
-func (r *runner) reduce() float64 {
+func (r *runner) reduce(prices []float64) float64 {
 	if len(r.scale) != len(r.sub) {
 		r.scale = make([]float64, len(r.sub))
 	}
@@ -379,7 +513,7 @@ func (r *runner) reduce() float64 {
 		}
 	}
 	for i, row := range r.p.Rows {
-		value -= r.prices[i] * row.RHS
+		value -= prices[i] * row.RHS
 	}
 	return value
 }
@@ -394,7 +528,7 @@ func (r *runner) project() float64 {
 	norm2 := 0.0
 	for i, row := range r.p.Rows {
 		sign := PriceSign(r.p.Sense, row.Sense)
-		if sign != 0 && r.prices[i] == 0 && float64(sign)*dir*r.sub[i] < 0 {
+		if sign != 0 && r.st.Prices[i] == 0 && float64(sign)*dir*r.sub[i] < 0 {
 			r.sub[i] = 0
 		}
 		// A component at the level of rounding noise is zero: stepping
@@ -409,27 +543,27 @@ func (r *runner) project() float64 {
 }
 
 func (r *runner) target() float64 {
-	if r.plan != nil {
-		return r.plan.Value
+	if r.st.Plan != nil {
+		return r.st.Plan.Value
 	}
-	est := 0.05*math.Abs(r.bound) + 1
+	est := 0.05*math.Abs(r.st.Bound) + 1
 	if r.p.Sense == Maximise {
-		return r.bound - est
+		return r.st.Bound - est
 	}
-	return r.bound + est
+	return r.st.Bound + est
 }
 
 // repairInput snapshots what a repairer sees; with copy set it owns its
 // slices, so that the repair can run while the next rounds reuse them.
 func (r *runner) repairInput(round int, final, copyState bool) *RepairInput {
 	in := &RepairInput{
-		Round: round, Final: final, Sense: r.p.Sense, Prices: r.prices,
-		Answers: r.answers, Best: r.plan, Seed: mixSeed(r.s.Seed, uint64(round)),
-		Bound: r.bound, BoundPrices: r.bestPrices,
+		Round: round, Final: final, Sense: r.p.Sense, Prices: r.st.Prices,
+		Answers: r.answers, Best: r.st.Plan, Seed: mixSeed(r.s.Seed, uint64(round)),
+		Bound: r.st.Bound, BoundPrices: r.st.BestPrices,
 	}
 	if copyState {
-		in.Prices = append([]float64(nil), r.prices...)
-		in.BoundPrices = append([]float64(nil), r.bestPrices...)
+		in.Prices = append([]float64(nil), r.st.Prices...)
+		in.BoundPrices = append([]float64(nil), r.st.BestPrices...)
 		in.Answers = make([]Answer, len(r.answers))
 		for k, a := range r.answers {
 			in.Answers[k] = Answer{Value: a.Value, Cost: a.Cost,
@@ -458,20 +592,38 @@ func (r *runner) launchRepair(ctx context.Context, round int) {
 	}
 	in := r.repairInput(round, false, true)
 	ch := make(chan repairOutcome, 1)
+	rctx, cancel := context.WithCancel(ctx)
 	go func() {
-		plan, err := r.p.Repair.Repair(ctx, in)
-		ch <- repairOutcome{round: round, plan: plan, err: err, cancelled: ctx.Err() != nil}
+		plan, err := r.p.Repair.Repair(rctx, in)
+		ch <- repairOutcome{round: round, plan: plan, err: err, cancelled: rctx.Err() != nil}
 	}()
-	r.pending = ch
+	r.pending, r.cancelPending = ch, cancel
+}
+
+// dropRepair cancels the repair in flight, if any, and waits for it.
+func (r *runner) dropRepair() {
+	if r.pending == nil {
+		return
+	}
+	r.cancelPending()
+	<-r.pending
+	r.pending, r.cancelPending = nil, nil
 }
 
 // collectRepair waits for the running repair, if any, and merges its plan.
 func (r *runner) collectRepair() (bool, error) {
+	if r.st.HasPending {
+		// Waited for at a checkpoint; merged here as it would have been.
+		o := repairOutcome{round: r.st.PendingRound, plan: r.st.Pending}
+		r.st.Pending, r.st.PendingRound, r.st.HasPending = nil, 0, false
+		return r.accept(o)
+	}
 	if r.pending == nil {
 		return false, nil
 	}
 	o := <-r.pending
-	r.pending = nil
+	r.cancelPending()
+	r.pending, r.cancelPending = nil, nil
 	return r.accept(o)
 }
 
@@ -496,15 +648,15 @@ func (r *runner) accept(o repairOutcome) (bool, error) {
 	if plan == nil || math.IsNaN(plan.Value) {
 		return false, nil
 	}
-	better := r.plan == nil || r.p.Sense.Better(plan.Value, r.plan.Value)
-	if plan.Proved && (better || math.Abs(plan.Value-r.plan.Value) <= 1e-9*math.Max(1, math.Abs(plan.Value))) {
+	better := r.st.Plan == nil || r.p.Sense.Better(plan.Value, r.st.Plan.Value)
+	if plan.Proved && (better || math.Abs(plan.Value-r.st.Plan.Value) <= 1e-9*math.Max(1, math.Abs(plan.Value))) {
 		// The optimum's value is itself a valid bound.
-		r.plan, r.planProved = plan, true
-		r.bound, r.hasBound = plan.Value, true
+		r.st.Plan, r.st.PlanProved = plan, true
+		r.st.Bound, r.st.HasBound = plan.Value, true
 		return true, nil
 	}
 	if better {
-		r.plan = plan
+		r.st.Plan = plan
 		return true, nil
 	}
 	return false, nil
@@ -520,7 +672,7 @@ func mixSeed(seed, round uint64) uint64 {
 
 // roundedBound is the bound after rounding an integral objective.
 func (r *runner) roundedBound() float64 {
-	b := r.bound
+	b := r.st.Bound
 	if !r.p.IntegralObjective {
 		return b
 	}
@@ -532,24 +684,24 @@ func (r *runner) roundedBound() float64 {
 }
 
 func (r *runner) proved() bool {
-	if r.planProved {
+	if r.st.PlanProved {
 		return true
 	}
-	if r.plan == nil || !r.hasBound {
+	if r.st.Plan == nil || !r.st.HasBound {
 		return false
 	}
 	b := r.roundedBound()
 	if r.p.Sense == Minimise {
-		return r.plan.Value <= b+1e-9*math.Max(1, math.Abs(b))
+		return r.st.Plan.Value <= b+1e-9*math.Max(1, math.Abs(b))
 	}
-	return r.plan.Value >= b-1e-9*math.Max(1, math.Abs(b))
+	return r.st.Plan.Value >= b-1e-9*math.Max(1, math.Abs(b))
 }
 
 func (r *runner) gap() float64 {
-	if r.plan == nil || !r.hasBound {
+	if r.st.Plan == nil || !r.st.HasBound {
 		return math.Inf(1)
 	}
-	return math.Max(0, math.Abs(r.plan.Value-r.bound)/math.Max(1, math.Abs(r.plan.Value)))
+	return math.Max(0, math.Abs(r.st.Plan.Value-r.st.Bound)/math.Max(1, math.Abs(r.st.Plan.Value)))
 }
 
 func (r *runner) closed() bool {
@@ -557,7 +709,7 @@ func (r *runner) closed() bool {
 }
 
 func (r *runner) closedStatus() Status {
-	if r.planProved {
+	if r.st.PlanProved {
 		return SearchClosed
 	}
 	if r.proved() {
@@ -566,20 +718,20 @@ func (r *runner) closedStatus() Status {
 	return GapReached
 }
 
-func (r *runner) result(status Status, rounds int) *Result {
+func (r *runner) result() *Result {
 	res := &Result{
-		Status: status, Proved: r.proved(), Bound: r.bound, HasBound: r.hasBound,
-		Plan: r.plan, Gap: r.gap(), Rounds: rounds, Elapsed: time.Since(r.start),
-		Prices: r.bestPrices, History: r.history,
+		Status: r.st.Status, Reason: r.st.Reason, Proved: r.proved(), Bound: r.st.Bound, HasBound: r.st.HasBound,
+		Plan: r.st.Plan, Gap: r.gap(), Rounds: r.st.Round, Elapsed: r.elapsed(),
+		Prices: r.st.BestPrices, History: r.st.History,
 	}
-	if !r.hasBound {
+	if !r.st.HasBound {
 		res.Bound = math.NaN()
 	}
 	res.Rows = make([]RowReport, len(r.p.Rows))
 	for i, row := range r.p.Rows {
-		rep := RowReport{Name: row.Name, Sense: row.Sense, RHS: row.RHS, Price: r.bestPrices[i], Use: math.NaN(), Slack: math.NaN()}
-		if r.plan != nil && i < len(r.plan.Use) {
-			rep.Use = r.plan.Use[i]
+		rep := RowReport{Name: row.Name, Sense: row.Sense, RHS: row.RHS, Price: r.st.BestPrices[i], Use: math.NaN(), Slack: math.NaN()}
+		if r.st.Plan != nil && i < len(r.st.Plan.Use) {
+			rep.Use = r.st.Plan.Use[i]
 			switch row.Sense {
 			case LessEqual:
 				rep.Slack = row.RHS - rep.Use
@@ -615,9 +767,13 @@ func Relaxed(ctx context.Context, p *Problem, prices []float64, ev Evaluator) (f
 	if ev == nil {
 		ev = Pool{}
 	}
-	r := &runner{p: p, prices: prices, answers: make([]Answer, len(p.Blocks)), sub: make([]float64, len(p.Rows))}
-	if err := ev.Evaluate(ctx, p.Blocks, &Request{Sense: p.Sense, Prices: prices}, r.answers); err != nil {
+	fix := append([]Fixing(nil), p.Fixings...)
+	if err := SortFixings(fix); err != nil {
+		return 0, nil, err
+	}
+	r := &runner{p: p, answers: make([]Answer, len(p.Blocks)), sub: make([]float64, len(p.Rows))}
+	if err := ev.Evaluate(ctx, p.Blocks, &Request{Sense: p.Sense, Prices: prices, Fixings: fix}, r.answers); err != nil {
 		return 0, nil, fmt.Errorf("decomp: %w", err)
 	}
-	return r.reduce(), r.answers, nil
+	return r.reduce(prices), r.answers, nil
 }

@@ -1,0 +1,81 @@
+package decomp_test
+
+import (
+	"context"
+	"fmt"
+	"hash/fnv"
+	"math"
+	"testing"
+
+	"pincer/decomp"
+	"pincer/instances/cflp"
+	"pincer/instances/gap"
+)
+
+func runFingerprint(t *testing.T, p *decomp.Problem, s decomp.Settings) string {
+	t.Helper()
+	res, err := decomp.Solve(context.Background(), p, s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	h := fnv.New64a()
+	for _, r := range res.History {
+		fmt.Fprintf(h, "%d %x %x %x %x %x\n", r.Round, math.Float64bits(r.Value), math.Float64bits(r.Bound), math.Float64bits(r.PlanValue), math.Float64bits(r.Step), math.Float64bits(r.Norm))
+	}
+	for _, v := range res.Prices {
+		fmt.Fprintf(h, "%x ", math.Float64bits(v))
+	}
+	pv := math.NaN()
+	if res.Plan != nil {
+		pv = res.Plan.Value
+	}
+	return fmt.Sprintf("%s rounds=%d bound=%v plan=%v hash=%x", res.Status, res.Rounds, res.Bound, pv, h.Sum64())
+}
+
+// TestFingerprint: the expected lines were recorded from the engine before
+// the run became a State value (commit 2d38dca); the Subgradient runs must
+// stay bit-identical (status, rounds, bound, plan and a hash of the whole
+// history and prices).
+func TestFingerprint(t *testing.T) {
+	if testing.Short() {
+		t.Skip("long: runs GAP and facility problems")
+	}
+	want := []string{
+		"gap c knapsack: integer-closed rounds=120 bound=1473.1114454275682 plan=1474 hash=da0f4dc2f1b139cf",
+		"gap c choice: round-limit rounds=200 bound=1460.2020064877292 plan=1474 hash=3be21a773acefbc5",
+		"gap d knapsack: round-limit rounds=200 bound=6229.104498399183 plan=6266 hash=c4ac7a8b10a91293",
+		"gap d choice: round-limit rounds=200 bound=6201.310906346376 plan=6279 hash=b00ca2cdfd1e1c93",
+		"cflp: search-closed rounds=105 bound=14508.07060003022 plan=14508.07060003022 hash=5577643f1447be7d",
+		"many: round-limit rounds=100 bound=626568.5008650353 plan=NaN hash=e2347a6443467298",
+	}
+	var got []string
+
+	for _, kind := range []byte{'c', 'd'} {
+		in, err := gap.Generate(kind, 10, 100, 7)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, rel := range []gap.Relaxation{gap.KnapsackRelaxation, gap.ChoiceRelaxation} {
+			p, err := gap.NewProblem(in, gap.Options{Relaxation: rel})
+			if err != nil {
+				t.Fatal(err)
+			}
+			got = append(got, fmt.Sprintf("gap %c %v: %s", kind, rel, runFingerprint(t, p, decomp.Settings{Rounds: 200, Seed: 3, Gap: -1, Evaluator: decomp.Pool{Workers: 2}})))
+		}
+	}
+	in, err := cflp.Generate(30, 80, 3, 5)
+	if err != nil {
+		t.Fatal(err)
+	}
+	p, err := cflp.NewProblem(in, cflp.Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	got = append(got, fmt.Sprintf("cflp: %s", runFingerprint(t, p, decomp.Settings{Rounds: 150, Seed: 3, Gap: -1, Evaluator: decomp.Pool{Workers: 2}})))
+	got = append(got, fmt.Sprintf("many: %s", runFingerprint(t, manyBlocks(2000, 30), decomp.Settings{Rounds: 100, Seed: 1})))
+	for i := range want {
+		if i >= len(got) || got[i] != want[i] {
+			t.Errorf("run %d:\n got %v\nwant %s", i, got[i:min(i+1, len(got))], want[i])
+		}
+	}
+}

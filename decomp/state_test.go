@@ -1,0 +1,208 @@
+package decomp_test
+
+import (
+	"bytes"
+	"context"
+	"encoding/gob"
+	"errors"
+	"math"
+	"path/filepath"
+	"reflect"
+	"sync/atomic"
+	"testing"
+	"time"
+
+	"pincer/decomp"
+	"pincer/subproblem"
+)
+
+// intsCodec serialises a GAP plan's detail (the agent of every job).
+type intsCodec struct{}
+
+func (intsCodec) EncodePlan(d any) ([]byte, error) {
+	var b bytes.Buffer
+	err := gob.NewEncoder(&b).Encode(d.([]int))
+	return b.Bytes(), err
+}
+
+func (intsCodec) DecodePlan(data []byte) (any, error) {
+	var v []int
+	err := gob.NewDecoder(bytes.NewReader(data)).Decode(&v)
+	return v, err
+}
+
+// pickPlan keeps the relaxed choices when they respect every row; it has
+// no memory across calls, which exact resumption needs.
+type pickPlan struct{ p *decomp.Problem }
+
+func (r pickPlan) Repair(_ context.Context, in *decomp.RepairInput) (*decomp.Plan, error) {
+	use := make([]float64, len(r.p.Rows))
+	pick := make([]int, len(in.Answers))
+	value := 0.0
+	for k, a := range in.Answers {
+		o := r.p.Blocks[k].(*subproblem.Choice).Options[a.Primal[0].Index]
+		pick[k] = a.Primal[0].Index
+		value += o.Cost
+		for _, e := range o.Use {
+			use[e.Index] += e.Value
+		}
+	}
+	for i, row := range r.p.Rows {
+		if use[i] > row.RHS {
+			return nil, nil
+		}
+	}
+	return &decomp.Plan{Value: value, Use: use, Detail: pick}, nil
+}
+
+func smallRun(t *testing.T) *decomp.Problem {
+	t.Helper()
+	p := manyBlocks(400, 8)
+	for i := range p.Rows {
+		p.Rows[i].RHS = 50
+	}
+	p.Repair = pickPlan{p}
+	p.Plans = intsCodec{}
+	return p
+}
+
+func clean(res *decomp.Result) {
+	res.Elapsed = 0
+	for i := range res.History {
+		res.History[i].Elapsed = 0
+		if math.IsNaN(res.History[i].PlanValue) {
+			res.History[i].PlanValue = -1
+		}
+	}
+}
+
+// TestResumeMatchesUninterrupted: the reference is the same run without a
+// break; a checkpoint at round k, written to a file, read back and resumed,
+// must end in the same place.
+func TestResumeMatchesUninterrupted(t *testing.T) {
+	s := decomp.Settings{Rounds: 120, Seed: 5, Gap: -1, Evaluator: decomp.Pool{Workers: 2}}
+	ref, err := decomp.Solve(context.Background(), smallRun(t), s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Logf("reference: %s after %d rounds", ref.Status, ref.Rounds)
+	for _, k := range []int{1, 7, 23} {
+		path := filepath.Join(t.TempDir(), "run.ckpt")
+		p := smallRun(t)
+		ctx, cancel := context.WithCancel(context.Background())
+		cs := s
+		cs.Method = &decomp.Subgradient{}
+		cs.CheckpointEvery = k
+		cs.Checkpoint = func(st *decomp.State) error {
+			if st.Round != k {
+				return nil
+			}
+			cancel() // the break: the run stops at the next boundary
+			return decomp.WriteCheckpointFile(path, &decomp.Checkpoint{InstanceHash: "h", Settings: "s", State: st}, p.Plans)
+		}
+		if _, err := decomp.Solve(ctx, p, cs); err != nil {
+			t.Fatal(err)
+		}
+		cancel()
+		c, err := decomp.ReadCheckpointFile(path, p.Plans)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var mm *decomp.MismatchError
+		if err := c.Match("other", "s"); !errors.As(err, &mm) {
+			t.Fatalf("another instance hash was accepted: %v", err)
+		}
+		if err := c.Match("h", "s"); err != nil {
+			t.Fatal(err)
+		}
+		rs := s
+		rs.Method = &decomp.Subgradient{}
+		res, err := decomp.Resume(context.Background(), smallRun(t), rs, c.State)
+		if err != nil {
+			t.Fatal(err)
+		}
+		r0 := *ref
+		clean(&r0)
+		clean(res)
+		if (r0.Plan == nil) != (res.Plan == nil) || r0.Plan != nil && r0.Plan.Value != res.Plan.Value {
+			t.Fatalf("k=%d: resumed plan %v, uninterrupted %v", k, res.Plan, r0.Plan)
+		}
+		if res.Rounds != r0.Rounds || res.Bound != r0.Bound ||
+			!reflect.DeepEqual(res.Prices, r0.Prices) || !reflect.DeepEqual(res.History, r0.History) {
+			t.Fatalf("k=%d: resumed run (rounds %d bound %v %s) differs from uninterrupted (rounds %d bound %v %s)",
+				k, res.Rounds, res.Bound, res.Status, r0.Rounds, r0.Bound, r0.Status)
+		}
+	}
+}
+
+type failingBlock struct{}
+
+func (failingBlock) Solve(context.Context, *decomp.Request, *decomp.Answer) error {
+	return errors.New("broken block")
+}
+
+type onceFailing struct {
+	decomp.Block
+	calls int
+}
+
+func (b *onceFailing) Solve(ctx context.Context, req *decomp.Request, ans *decomp.Answer) error {
+	b.calls++
+	if b.calls == 2 {
+		return errors.New("broken block")
+	}
+	return b.Block.Solve(ctx, req, ans)
+}
+
+type slowRepair struct{ started, done atomic.Int32 }
+
+func (r *slowRepair) Repair(ctx context.Context, _ *decomp.RepairInput) (*decomp.Plan, error) {
+	r.started.Add(1)
+	defer r.done.Add(1)
+	select {
+	case <-ctx.Done():
+		return nil, ctx.Err()
+	case <-time.After(time.Minute):
+		return nil, nil
+	}
+}
+
+// TestRepairOwned: a block fails in round 2 while round 1's repair runs;
+// when Solve returns, that repair has seen cancellation and returned.
+func TestRepairOwned(t *testing.T) {
+	p := manyBlocks(10, 3)
+	p.Blocks[0] = &onceFailing{Block: p.Blocks[0]}
+	rep := &slowRepair{}
+	p.Repair = rep
+	_, err := decomp.Solve(context.Background(), p, decomp.Settings{Evaluator: decomp.Pool{Workers: 1}})
+	if err == nil {
+		t.Fatal("a failing block did not fail the run")
+	}
+	if rep.started.Load() != 1 || rep.done.Load() != 1 {
+		t.Fatalf("repairs started %d, returned %d when Solve returned", rep.started.Load(), rep.done.Load())
+	}
+}
+
+func FuzzDecodeCheckpoint(f *testing.F) {
+	st := &decomp.State{Round: 3, Prices: []float64{1, 2}, BestPrices: []float64{1, 0}, Bound: 4, HasBound: true,
+		Plan: &decomp.Plan{Value: 5, Use: []float64{1, 1}, Detail: []int{0, 1}}, Method: []byte("x")}
+	good, err := decomp.EncodeCheckpoint(&decomp.Checkpoint{InstanceHash: "h", State: st}, intsCodec{})
+	if err != nil {
+		f.Fatal(err)
+	}
+	f.Add(good)
+	f.Add(good[:len(good)/2])
+	f.Add([]byte("PINCRUN\x00"))
+	f.Fuzz(func(t *testing.T, data []byte) {
+		c, err := decomp.DecodeCheckpoint(data, intsCodec{})
+		if err != nil {
+			if !errors.Is(err, decomp.ErrCheckpoint) {
+				t.Fatalf("refusal does not wrap ErrCheckpoint: %v", err)
+			}
+			return
+		}
+		if _, err := decomp.EncodeCheckpoint(c, intsCodec{}); err != nil {
+			t.Fatalf("decoded checkpoint does not re-encode: %v", err)
+		}
+	})
+}
