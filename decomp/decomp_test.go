@@ -191,7 +191,7 @@ func TestWeakDualityAlongRuns(t *testing.T) {
 			if tb.p.Sense.Better(res.Plan.Value, tb.opt) {
 				t.Fatalf("plan value %v better than optimum %v", res.Plan.Value, tb.opt)
 			}
-			if res.Proved && res.Plan.Value != tb.opt {
+			if res.ProvedOptimal && res.Plan.Value != tb.opt {
 				t.Fatalf("claimed proof, plan %v optimum %v", res.Plan.Value, tb.opt)
 			}
 		}

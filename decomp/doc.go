@@ -100,8 +100,8 @@
 //	time-limit         Settings.Time ran out, or the caller's deadline (early)
 //	stalled            no better bound or plan for Settings.StallRounds rounds (early)
 //	interrupted        the caller cancelled the context (early)
-//	proved-infeasible  the bound passed Problem.PlanLimit: no feasible plan
-//	search-closed      the repairer's own exact search proved its plan (Plan.Proved)
+//	proved-infeasible  the bound passed Problem.WorstPlanValue: no feasible plan
+//	search-closed      the repairer's own exact search proved its plan (Plan.ProvedOptimal)
 //	method-stopped     the price rule ended the run (Step.Stop); Result.Reason says why
 //
 // Early stops can be resumed from their last checkpoint.

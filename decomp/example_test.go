@@ -54,7 +54,7 @@ func Example() {
 		fmt.Println(err)
 		return
 	}
-	fmt.Printf("plan %.0f, bound %.0f, proved %v (%s)\n", res.Plan.Value, res.Bound, res.Proved, res.Status)
+	fmt.Printf("plan %.0f, bound %.0f, proved %v (%s)\n", res.Plan.Value, res.Bound, res.ProvedOptimal, res.Status)
 	fmt.Printf("%s: price %.0f, binding %v\n", res.Rows[0].Name, res.Rows[0].Price, res.Rows[0].Binding)
 	// Output:
 	// plan 11, bound 11, proved true (integer-closed)

@@ -45,7 +45,7 @@ func SolveNode(ctx context.Context, p *Problem, ns NodeSettings) (*NodeResult, e
 	if ns.Prices != nil {
 		q.Prices = ns.Prices
 	}
-	q.PlanLimit, q.HasPlanLimit = ns.Cutoff, ns.HasCutoff
+	q.WorstPlanValue, q.HasWorstPlanValue = ns.Cutoff, ns.HasCutoff
 	rounds := ns.Rounds
 	if rounds <= 0 {
 		rounds = 50

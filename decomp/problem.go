@@ -183,11 +183,11 @@ type Plan struct {
 	// Detail is the family's own representation of the plan; the engine
 	// passes it through untouched.
 	Detail any
-	// Proved states that the repairer proved this plan optimal by an exact
+	// ProvedOptimal states that the repairer proved this plan optimal by an exact
 	// search of its own (for example a branch and bound over a few
 	// decisions, using the relaxation's bound). The engine then takes the
 	// plan's value as the bound and stops.
-	Proved bool
+	ProvedOptimal bool
 }
 
 // RepairInput is what a repairer sees in a round.
@@ -231,11 +231,11 @@ type Problem struct {
 	// value, so the bound may be rounded (up when minimising, down when
 	// maximising) when judging whether a plan is proved optimal.
 	IntegralObjective bool
-	// PlanLimit, when HasPlanLimit is set, is a value that every feasible
+	// WorstPlanValue, when HasWorstPlanValue is set, is a value that every feasible
 	// plan is at least as good as (for example the sum of every block's
 	// worst cost). A bound beyond it proves that no feasible plan exists.
-	PlanLimit    float64
-	HasPlanLimit bool
+	WorstPlanValue    float64
+	HasWorstPlanValue bool
 	// Repair is optional; without it the run gives a bound only.
 	Repair Repairer
 	// Fixings fix block variables for the whole run (a search node's

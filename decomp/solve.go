@@ -31,11 +31,11 @@ const (
 	Stalled
 	// Interrupted: the context was cancelled.
 	Interrupted
-	// ProvedInfeasible: the bound passed Problem.PlanLimit, so no feasible
+	// ProvedInfeasible: the bound passed Problem.WorstPlanValue, so no feasible
 	// plan exists.
 	ProvedInfeasible
 	// SearchClosed: the repairer proved its plan optimal by an exact search
-	// (Plan.Proved).
+	// (Plan.ProvedOptimal).
 	SearchClosed
 	// MethodStopped: the price-update method ended the run (Step.Stop);
 	// State.Reason and Result.Reason carry its own explanation.
@@ -162,9 +162,9 @@ type Result struct {
 	Status Status
 	// Reason is the method's own explanation when Status is MethodStopped.
 	Reason string
-	// Proved reports that the plan is optimal: it meets the bound (within
+	// ProvedOptimal reports that the plan is optimal: it meets the bound (within
 	// 1e-9 relative, or exactly after rounding an integral objective).
-	Proved bool
+	ProvedOptimal bool
 	// Bound is the best relaxed bound (lower for min, upper for max);
 	// HasBound is false only when no round completed.
 	Bound    float64
@@ -440,7 +440,7 @@ func (r *runner) round(ctx, parent context.Context) error {
 func (r *runner) stopRule(norm float64) Status {
 	p, st := r.p, r.st
 	switch {
-	case p.HasPlanLimit && p.Sense.Better(p.PlanLimit, st.Bound) && st.Plan == nil:
+	case p.HasWorstPlanValue && p.Sense.Better(p.WorstPlanValue, st.Bound) && st.Plan == nil:
 		return ProvedInfeasible
 	case r.closed():
 		return r.closedStatus()
@@ -649,7 +649,7 @@ func (r *runner) accept(o repairOutcome) (bool, error) {
 		return false, nil
 	}
 	better := r.st.Plan == nil || r.p.Sense.Better(plan.Value, r.st.Plan.Value)
-	if plan.Proved && (better || math.Abs(plan.Value-r.st.Plan.Value) <= 1e-9*math.Max(1, math.Abs(plan.Value))) {
+	if plan.ProvedOptimal && (better || math.Abs(plan.Value-r.st.Plan.Value) <= 1e-9*math.Max(1, math.Abs(plan.Value))) {
 		// The optimum's value is itself a valid bound.
 		r.st.Plan, r.st.PlanProved = plan, true
 		r.st.Bound, r.st.HasBound = plan.Value, true
@@ -720,7 +720,7 @@ func (r *runner) closedStatus() Status {
 
 func (r *runner) result() *Result {
 	res := &Result{
-		Status: r.st.Status, Reason: r.st.Reason, Proved: r.proved(), Bound: r.st.Bound, HasBound: r.st.HasBound,
+		Status: r.st.Status, Reason: r.st.Reason, ProvedOptimal: r.proved(), Bound: r.st.Bound, HasBound: r.st.HasBound,
 		Plan: r.st.Plan, Gap: r.gap(), Rounds: r.st.Round, Elapsed: r.elapsed(),
 		Prices: r.st.BestPrices, History: r.st.History,
 	}

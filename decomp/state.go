@@ -135,7 +135,7 @@ func encodePlan(p *Plan, codec PlanCodec) (*planRecord, error) {
 	if p == nil {
 		return nil, nil
 	}
-	rec := &planRecord{Value: p.Value, Use: p.Use, Proved: p.Proved}
+	rec := &planRecord{Value: p.Value, Use: p.Use, Proved: p.ProvedOptimal}
 	if p.Detail != nil {
 		if codec == nil {
 			return nil, errors.New("decomp: the plan has a detail but the problem has no PlanCodec")
@@ -153,7 +153,7 @@ func decodePlan(rec *planRecord, codec PlanCodec) (*Plan, error) {
 	if rec == nil {
 		return nil, nil
 	}
-	p := &Plan{Value: rec.Value, Use: rec.Use, Proved: rec.Proved}
+	p := &Plan{Value: rec.Value, Use: rec.Use, ProvedOptimal: rec.Proved}
 	if rec.HasDetail {
 		if codec == nil {
 			return nil, fmt.Errorf("%w: the plan has a detail but no PlanCodec was given", ErrCheckpoint)

@@ -1,4 +1,5 @@
-// Package heuristics turns relaxed answers into feasible plans and improves
+// Package heuristics is about capacitated assignment: it turns relaxed answers
+// into feasible assignment plans and improves
 // them.
 //
 // In the solve flow (file -> family model -> engine problem -> rounds ->

@@ -101,7 +101,7 @@ func buildReport(format, file string, index, workers int, seed uint64, full bool
 	r := &report{
 		ReportVersion: reportVersion, Format: format, File: file, Index: index,
 		Instance: m.Name(), Size: m.Size(), Sense: m.Sense().String(),
-		Bound: num(res.Bound), Gap: num(res.Gap), ProvedOptimal: res.Proved,
+		Bound: num(res.Bound), Gap: num(res.Gap), ProvedOptimal: res.ProvedOptimal,
 		Stop: res.Status.String(), Rounds: res.Rounds, Seconds: num(res.Elapsed.Seconds()),
 		Workers: workers, Seed: seed, Caution: caution, Family: extra, Plan: plan,
 	}
@@ -261,7 +261,7 @@ func printSummary(w io.Writer, m instances.Model, integral bool, res *decomp.Res
 		fmt.Fprintf(w, "gap         %s\n", fmtGap(res.Gap))
 	}
 	proved := "no"
-	if res.Proved {
+	if res.ProvedOptimal {
 		proved = "yes"
 		if rounds && res.Plan != nil && res.Plan.Value == rb {
 			proved = "yes (the plan value meets the rounded bound: no plan with whole values can do better)"

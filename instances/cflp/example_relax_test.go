@@ -37,7 +37,7 @@ func ExampleNewProblem() {
 		return
 	}
 	sol := res.Plan.Detail.(*cflp.Solution)
-	fmt.Printf("plan value %.2f, proved %v\n", res.Plan.Value, res.Proved || sol.Optimal)
+	fmt.Printf("plan value %.2f, proved %v\n", res.Plan.Value, res.ProvedOptimal || sol.Optimal)
 	for i, s := range in.Sites {
 		fmt.Printf("%s open=%v load %.0f of %.0f\n", s.Name, sol.Open[i], sol.Load[i], s.Capacity)
 	}

@@ -9,12 +9,12 @@ import (
 	"pincer/instances"
 )
 
-// Status says whether a site may be opened or closed by the optimisation.
-type Status int
+// SiteFixing says whether a site may be opened or closed by the optimisation.
+type SiteFixing int
 
 const (
 	// Free lets the optimisation decide whether the site opens.
-	Free Status = iota
+	Free SiteFixing = iota
 	// ForcedOpen keeps the site open: its fixed cost is always paid.
 	ForcedOpen
 	// ForcedClosed keeps the site closed: it serves nobody.
@@ -23,7 +23,7 @@ const (
 
 // String returns the word used for the status in scenario files:
 // "free", "open" or "closed".
-func (s Status) String() string {
+func (s SiteFixing) String() string {
 	switch s {
 	case Free:
 		return "free"
@@ -32,7 +32,7 @@ func (s Status) String() string {
 	case ForcedClosed:
 		return "closed"
 	}
-	return fmt.Sprintf("Status(%d)", int(s))
+	return fmt.Sprintf("SiteFixing(%d)", int(s))
 }
 
 // Site is a candidate facility.
@@ -40,7 +40,7 @@ type Site struct {
 	ID, Name  string
 	Capacity  float64 // largest total demand the site can serve, in demand units
 	FixedCost float64 // paid once if the site is open
-	Status    Status
+	Status    SiteFixing
 }
 
 // Customer is a demand point.

@@ -150,7 +150,7 @@ type site struct {
 	fixed    float64
 	capacity float64
 	icap     int64 // scaled capacity (single source with an exact scale)
-	status   Status
+	status   SiteFixing
 }
 
 // scratch is the working space of one site evaluation.

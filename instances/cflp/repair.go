@@ -173,7 +173,7 @@ func (r *repairer) Repair(ctx context.Context, rin *decomp.RepairInput) (*decomp
 	for j := range use {
 		use[j] = 1
 	}
-	return &decomp.Plan{Value: sol.Value, Use: use, Detail: sol, Proved: optimal}, nil
+	return &decomp.Plan{Value: sol.Value, Use: use, Detail: sol, ProvedOptimal: optimal}, nil
 }
 
 // evalFrac is eval with continuous shares, used to rank sites.
@@ -685,14 +685,14 @@ func (r *repairer) branchAndBound(ctx context.Context, prices []float64, open []
 	tol := func() float64 { return 1e-9 * math.Max(1, math.Abs(best)) }
 
 	type node struct {
-		fix    []Status
+		fix    []SiteFixing
 		prices []float64
 	}
 	limit := md.opt.ExactNodes
 	if limit <= 0 {
 		limit = 20000
 	}
-	root := node{fix: make([]Status, m), prices: slices.Clone(prices)}
+	root := node{fix: make([]SiteFixing, m), prices: slices.Clone(prices)}
 	for i := range root.fix {
 		root.fix[i] = md.sites[i].status
 	}
@@ -825,7 +825,7 @@ func (r *repairer) branchAndBound(ctx context.Context, prices []float64, open []
 
 // closedFeasible reports whether the sites not forced closed can cover the
 // demand.
-func closedFeasible(md *model, fix []Status) bool {
+func closedFeasible(md *model, fix []SiteFixing) bool {
 	c := 0.0
 	for i, f := range fix {
 		if f != ForcedClosed {
@@ -858,8 +858,8 @@ func (r *repairer) openOf(answers []decomp.Answer, dst []bool) []bool {
 
 // completeFixed is complete under a node's fixed statuses: sites fixed
 // closed never open, sites fixed open always do.
-func (r *repairer) completeFixed(open []bool, fix []Status) ([]bool, float64, error) {
-	saved := make([]Status, len(fix))
+func (r *repairer) completeFixed(open []bool, fix []SiteFixing) ([]bool, float64, error) {
+	saved := make([]SiteFixing, len(fix))
 	for i := range r.md.sites {
 		saved[i] = r.md.sites[i].status
 		r.md.sites[i].status = fix[i]

@@ -67,7 +67,7 @@ func TestORLibSmallOptima(t *testing.T) {
 		if math.Abs(rel) > 1e-6 {
 			t.Errorf("%s: plan %.4f, published optimum %.3f (rel %.2e)", ref.name, res.Plan.Value, ref.value, rel)
 		}
-		if !res.Proved && !sol.Optimal {
+		if !res.ProvedOptimal && !sol.Optimal {
 			t.Errorf("%s: plan not proved optimal (bound %.4f; the site branch and bound did not close)", ref.name, res.Bound)
 		}
 		if res.Bound > ref.value*(1+1e-9) {

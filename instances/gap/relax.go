@@ -110,9 +110,9 @@ func NewProblem(in *Instance, opt Options) (*decomp.Problem, error) {
 				worst = c
 			}
 		}
-		p.PlanLimit += float64(worst)
+		p.WorstPlanValue += float64(worst)
 	}
-	p.HasPlanLimit = true
+	p.HasWorstPlanValue = true
 	p.Repair = newRepairer(in, opt)
 	return p, nil
 }

@@ -135,7 +135,7 @@ func checkTiny(t fataler, in *Instance, maximise bool, relax Relaxation, rng *ra
 		if (maximise && v.Value > opt) || (!maximise && v.Value < opt) {
 			t.Fatalf("plan %d beats the optimum %d", v.Value, opt)
 		}
-		if res.Proved && v.Value != opt {
+		if res.ProvedOptimal && v.Value != opt {
 			t.Fatalf("proof claimed for %d, optimum %d", v.Value, opt)
 		}
 	}
