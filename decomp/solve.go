@@ -105,6 +105,11 @@ type Settings struct {
 	// cost the overlap of repair and rounds, never reproducibility.
 	Checkpoint      func(*State) error
 	CheckpointEvery int
+	// CheckpointInterval, when positive, also hands the state to
+	// Checkpoint at the first round boundary after this much wall time
+	// since the last one. Checkpoints never change a run's outcome, so a
+	// clock-driven schedule keeps runs reproducible.
+	CheckpointInterval time.Duration
 }
 
 // Progress is what an observer sees after each round.
@@ -301,14 +306,21 @@ func (r *runner) loop(parent context.Context) (res *Result, err error) {
 		defer cancelRounds()
 	}
 	st := r.st
+	lastCheckpoint := time.Now()
 	for st.Status == Running {
 		if err := r.round(ctx, parent); err != nil {
 			return nil, err
 		}
-		if st.Status == Running && r.s.Checkpoint != nil && r.s.CheckpointEvery > 0 && st.Round%r.s.CheckpointEvery == 0 {
+		if st.Status != Running || r.s.Checkpoint == nil {
+			continue
+		}
+		byRounds := r.s.CheckpointEvery > 0 && st.Round%r.s.CheckpointEvery == 0
+		byClock := r.s.CheckpointInterval > 0 && time.Since(lastCheckpoint) >= r.s.CheckpointInterval
+		if byRounds || byClock {
 			if err := r.checkpoint(); err != nil {
 				return nil, err
 			}
+			lastCheckpoint = time.Now()
 		}
 	}
 	if r.s.Checkpoint != nil && st.Status.Early() {

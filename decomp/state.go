@@ -309,3 +309,31 @@ func ReadCheckpointFile(path string, codec PlanCodec) (*Checkpoint, error) {
 	}
 	return c, nil
 }
+
+// GobPlans is a PlanCodec for a family whose Plan.Detail is always a value
+// of type T that encoding/gob can carry (exported fields, no functions or
+// channels).
+type GobPlans[T any] struct{}
+
+// EncodePlan implements PlanCodec.
+func (GobPlans[T]) EncodePlan(detail any) ([]byte, error) {
+	v, ok := detail.(T)
+	if !ok {
+		var zero T
+		return nil, fmt.Errorf("decomp: plan detail of type %T, want %T", detail, zero)
+	}
+	var b bytes.Buffer
+	if err := gob.NewEncoder(&b).Encode(&v); err != nil {
+		return nil, fmt.Errorf("decomp: encoding plan detail: %w", err)
+	}
+	return b.Bytes(), nil
+}
+
+// DecodePlan implements PlanCodec.
+func (GobPlans[T]) DecodePlan(data []byte) (any, error) {
+	var v T
+	if err := gob.NewDecoder(bytes.NewReader(data)).Decode(&v); err != nil {
+		return nil, fmt.Errorf("decomp: decoding plan detail: %w", err)
+	}
+	return v, nil
+}

@@ -35,6 +35,7 @@ type runFlags struct {
 	repairEvery int
 	stall       int
 	history     string
+	checkpoints checkpointFlags // solve only
 }
 
 func (f *runFlags) register(cmd *cobra.Command) {
@@ -117,6 +118,9 @@ func newSolveCmd(chosen string) *cobra.Command {
 			if err := f.check(); err != nil {
 				return err
 			}
+			if err := f.checkpoints.check(); err != nil {
+				return err
+			}
 			m, err := load(f.format, args[0], f.opts)
 			if err != nil {
 				return err
@@ -130,6 +134,7 @@ func newSolveCmd(chosen string) *cobra.Command {
 	}
 	f.opts = familyOptions(cmd, &f.format, chosen)
 	f.register(cmd)
+	f.checkpoints.register(cmd)
 	return cmd
 }
 
@@ -152,7 +157,11 @@ func solveModel(ctx context.Context, stdout, stderr io.Writer, f *runFlags, file
 	if prog != nil {
 		settings.Observer = prog
 	}
-	res, err := decomp.Solve(ctx, p, settings)
+	state, err := prepareCheckpoints(f, file, p, &settings)
+	if err != nil {
+		return nil, err
+	}
+	res, err := decomp.Resume(ctx, p, settings, state)
 	if prog != nil {
 		prog.done(res)
 	}

@@ -395,7 +395,7 @@ func NewProblem(in *Instance, opt Options) (*decomp.Problem, error) {
 		return nil, err
 	}
 	n := len(in.Customers)
-	p := &decomp.Problem{Name: in.Name, Sense: decomp.Minimise}
+	p := &decomp.Problem{Name: in.Name, Sense: decomp.Minimise, Plans: decomp.GobPlans[*Solution]{}}
 	p.Rows = make([]decomp.Row, n)
 	for j, c := range in.Customers {
 		p.Rows[j] = decomp.Row{Name: "demand " + c.ID, Sense: decomp.Equal, RHS: 1}

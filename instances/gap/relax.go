@@ -66,7 +66,7 @@ func NewProblem(in *Instance, opt Options) (*decomp.Problem, error) {
 	if opt.Maximise {
 		sense = decomp.Maximise
 	}
-	p := &decomp.Problem{Name: in.Name, Sense: sense, IntegralObjective: true}
+	p := &decomp.Problem{Name: in.Name, Sense: sense, IntegralObjective: true, Plans: decomp.GobPlans[[]int]{}}
 	switch opt.Relaxation {
 	case KnapsackRelaxation:
 		p.Rows = make([]decomp.Row, in.Jobs)

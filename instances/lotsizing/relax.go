@@ -87,7 +87,7 @@ func NewProblem(in *Instance, opt Options) (*decomp.Problem, error) {
 		return nil, err
 	}
 	T := in.Periods()
-	p := &decomp.Problem{Name: in.Name, Sense: decomp.Minimise}
+	p := &decomp.Problem{Name: in.Name, Sense: decomp.Minimise, Plans: decomp.GobPlans[*Schedule]{}}
 	oc := overtimeCosts(in, opt)
 	for t := 0; t < T; t++ {
 		p.Rows = append(p.Rows, decomp.Row{Name: fmt.Sprintf("capacity %d", t+1), Sense: decomp.LessEqual, RHS: in.Capacity[t]})
