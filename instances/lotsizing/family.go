@@ -66,15 +66,19 @@ func (Family) Load(format, path string, v instances.Values) (instances.Model, er
 
 // asParseError turns the readers' own *ParseError into the shared
 // *instances.ParseError the command line recognises; other errors pass.
-// A folder reader names bare file names; they are joined to the folder.
-func asParseError(err error, folder bool, dir string) error {
+// The readers name bare file names; the message names the path as given
+// (a folder's file joined to the folder).
+func asParseError(err error, folder bool, path string) error {
 	var pe *ParseError
 	if !errors.As(err, &pe) {
 		return err
 	}
 	file := pe.File
-	if folder && file != "" && !filepath.IsAbs(file) && filepath.Base(file) == file {
-		file = filepath.Join(dir, file)
+	switch {
+	case folder && file != "" && filepath.Base(file) == file:
+		file = filepath.Join(path, file)
+	case !folder && file == filepath.Base(path):
+		file = path
 	}
 	return &instances.ParseError{File: file, Line: pe.Line, Column: pe.Column, Expected: pe.Expected, Err: pe.Err}
 }
