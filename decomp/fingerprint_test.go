@@ -45,7 +45,9 @@ func TestFingerprint(t *testing.T) {
 		"gap c choice: round-limit rounds=200 bound=1460.2020064877292 plan=1474 hash=3be21a773acefbc5",
 		"gap d knapsack: round-limit rounds=200 bound=6229.104498399183 plan=6266 hash=c4ac7a8b10a91293",
 		"gap d choice: round-limit rounds=200 bound=6201.310906346376 plan=6279 hash=b00ca2cdfd1e1c93",
-		"cflp: search-closed rounds=105 bound=14508.07060003022 plan=14508.07060003022 hash=5577643f1447be7d",
+		// The generator writes data with at most two decimals since the CLI
+		// issue, so this instance differs from the one first pinned.
+		"cflp: search-closed rounds=105 bound=14508.036600000001 plan=14508.036600000001 hash=af70ecd42f1edbfd",
 		"many: round-limit rounds=100 bound=626568.5008650353 plan=NaN hash=e2347a6443467298",
 	}
 	var got []string

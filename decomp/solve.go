@@ -88,8 +88,12 @@ type Settings struct {
 	Seed        uint64        // passed (mixed with the round) to the repairer
 	Method      Method        // price-update rule; nil means a fresh Subgradient
 	Evaluator   Evaluator     // block evaluation; nil means Pool{Workers: Workers}
-	Workers     int           // worker budget of the default Pool; 0 means GOMAXPROCS
-	Observer    Observer      // sees every round; nil means none
+	// Workers is the run's worker budget: it sizes the default Pool (0
+	// means GOMAXPROCS), and with 1 the in-round repair runs on the
+	// round's goroutine instead of overlapping the next rounds (same
+	// outcome, one core).
+	Workers  int
+	Observer Observer // sees every round; nil means none
 	// FinalRepairTime is kept for the last repair: with a time limit the
 	// rounds stop this long before it, so that the whole run fits in Time;
 	// after an interruption the last repair gets this long. 0 means a
@@ -605,10 +609,18 @@ func (r *runner) launchRepair(ctx context.Context, round int) {
 	in := r.repairInput(round, false, true)
 	ch := make(chan repairOutcome, 1)
 	rctx, cancel := context.WithCancel(ctx)
-	go func() {
+	work := func() {
 		plan, err := r.p.Repair.Repair(rctx, in)
 		ch <- repairOutcome{round: round, plan: plan, err: err, cancelled: rctx.Err() != nil}
-	}()
+	}
+	if r.s.Workers == 1 {
+		// A budget of one worker: the repair runs here, and its plan still
+		// waits for the next repair round, so the run is the same as with
+		// the overlap, only on one core.
+		work()
+	} else {
+		go work()
+	}
 	r.pending, r.cancelPending = ch, cancel
 }
 

@@ -148,7 +148,7 @@ func solveModel(ctx context.Context, stdout, stderr io.Writer, f *runFlags, file
 	}
 	settings := decomp.Settings{
 		Gap: f.gap, Time: f.time, Rounds: f.rounds, Seed: f.seed, RepairEvery: f.repairEvery, StallRounds: f.stall,
-		Evaluator: decomp.Pool{Workers: f.workers},
+		Workers: f.workers, Evaluator: decomp.Pool{Workers: f.workers},
 	}
 	if f.gap == 0 {
 		settings.Gap = -1 // run to proof or a limit
