@@ -126,6 +126,14 @@ func ReadTTM(r io.Reader, file string) (*Instance, error) {
 			}
 		}
 	}
+	if k < len(toks) && isNumber(toks[k].text) {
+		// The published files end with a free-text trailer, which is
+		// ignored; more numbers after the demands mean another layout (or a
+		// damaged file), and accepting them would make other formats' files
+		// parse here.
+		tk := toks[k]
+		return nil, &ParseError{File: file, Line: tk.line, Column: tk.col, Expected: fmt.Sprintf("the end of the file after %d demands", n*T), Err: fmt.Errorf("%q", tk.text)}
+	}
 	if err := in.Validate(); err != nil {
 		return nil, &ParseError{File: file, Line: 1, Column: 1, Expected: "a valid instance", Err: err}
 	}
@@ -138,4 +146,9 @@ func errorsCause(err error) error {
 		return ne.Err
 	}
 	return err
+}
+
+func isNumber(s string) bool {
+	_, err := strconv.ParseFloat(s, 64)
+	return err == nil
 }
