@@ -169,12 +169,17 @@ func TestGenFolderRefusesNonEmpty(t *testing.T) {
 // TestFlagRanges: every out-of-range value exits 2 and says the range.
 func TestFlagRanges(t *testing.T) {
 	gapFile := testdata("gap-c-5x30.txt")
+	scenario := t.TempDir()
+	if code, _, errs := runCLI(t, context.Background(), "gen", "cflp", "--sites", "4", "--customers", "8", "--ratio", "3", "--seed", "2", "-o", scenario, "--force"); code != exitOK {
+		t.Fatalf("gen cflp: exit %d: %s", code, errs)
+	}
 	cases := []struct {
 		args []string
 		want string
 	}{
 		{[]string{"solve", "--format", "gap-orlib", "--index", "0", gapFile}, "at least 1"},
 		{[]string{"solve", "--format", "cflp-orlib", "--index", "5", gapFile}, "1..4"},
+		{[]string{"solve", "--format", "cflp-csv", "--index", "2", scenario}, "a scenario folder holds one instance"},
 		{[]string{"solve", "--format", "gap-orlib", "--gap", "-1", gapFile}, "at least 0"},
 		{[]string{"solve", "--format", "gap-orlib", "--top", "-1", gapFile}, "at least 0"},
 		{[]string{"solve", "--format", "gap-orlib", "--workers", "0", gapFile}, "at least 1"},

@@ -61,6 +61,9 @@ func (Family) Load(format, path string, v instances.Values) (instances.Model, er
 			return nil, err
 		}
 	case "cflp-csv":
+		if k := v.Int("index"); k != 1 {
+			return nil, fmt.Errorf("--index %d: a scenario folder holds one instance; --index picks a capacity variant of OR-Library capa/capb/capc files only", k)
+		}
 		var err error
 		if in, err = ReadScenario(path); err != nil {
 			return nil, err
