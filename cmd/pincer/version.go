@@ -34,6 +34,9 @@ func versionString() string {
 			rev = rev[:12]
 		}
 		v += " commit " + rev + modified
+	} else {
+		// go run, or a build with -buildvcs=false, carries no revision.
+		v += " commit unknown (built without version-control stamping)"
 	}
 	return v + " " + bi.GoVersion
 }
