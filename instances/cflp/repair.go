@@ -131,7 +131,10 @@ func (r *repairer) Repair(ctx context.Context, rin *decomp.RepairInput) (*decomp
 	}
 	if rin.Final && rin.Best != nil {
 		// The last repair also polishes the best plan so far.
-		best := rin.Best.Detail.(*Solution)
+		best, ok := rin.Best.Detail.(*Solution)
+		if !ok || best == nil {
+			return nil, fmt.Errorf("cflp: best plan of type %T is not a facility solution", rin.Best.Detail)
+		}
 		bo, bv, err := r.search(ctx, slices.Clone(best.Open), best.Value, budget)
 		if err != nil {
 			return nil, err
