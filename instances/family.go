@@ -90,11 +90,12 @@ type Tables interface {
 	Create(suffix string) (io.WriteCloser, error)
 }
 
-// PlanWriter writes a plan as CSV, with optional extra tables.
+// PlanWriter writes a result's plan as CSV, with optional extra tables
+// (which may show the result's prices beside the plan).
 type PlanWriter interface {
 	// PlanTables lists the suffixes of the extra tables WritePlan creates.
 	PlanTables() []string
-	WritePlan(w io.Writer, p *decomp.Plan, extra Tables) error
+	WritePlan(w io.Writer, res *decomp.Result, extra Tables) error
 }
 
 // Sink receives the files a generator writes.

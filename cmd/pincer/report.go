@@ -200,7 +200,7 @@ func writeJSON(path string, stdout io.Writer, v any) error {
 	return nil
 }
 
-func writePlan(path string, stdout io.Writer, m instances.Model, p *decomp.Plan) error {
+func writePlan(path string, stdout io.Writer, m instances.Model, res *decomp.Result) error {
 	pw, ok := m.(instances.PlanWriter)
 	if !ok {
 		return fmt.Errorf("this format cannot write plan files")
@@ -213,7 +213,7 @@ func writePlan(path string, stdout io.Writer, m instances.Model, p *decomp.Plan)
 	if path != stdoutPath {
 		tables = sideTables{plan: path}
 	}
-	if err := pw.WritePlan(f, p, tables); err != nil {
+	if err := pw.WritePlan(f, res, tables); err != nil {
 		f.Close()
 		return fmt.Errorf("writing plan %s: %w", path, err)
 	}

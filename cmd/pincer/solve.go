@@ -186,7 +186,7 @@ func solveModel(ctx context.Context, stdout, stderr io.Writer, f *runFlags, file
 		}
 	}
 	if f.plan != "" && res.Plan != nil {
-		if err := writePlan(f.plan, stdout, m, res.Plan); err != nil {
+		if err := writePlan(f.plan, stdout, m, res); err != nil {
 			return res, &exitError{code: exitInternal, err: err}
 		}
 	}

@@ -250,8 +250,8 @@ func (m *Model) PlanTables() []string { return []string{"sites"} }
 
 // WritePlan writes the lane plan to w and, when extra is not nil, the site
 // table (see [WriteSitesCSV]) to extra.Create("sites").
-func (m *Model) WritePlan(w io.Writer, p *decomp.Plan, extra instances.Tables) error {
-	sol, err := m.SolutionOf(p)
+func (m *Model) WritePlan(w io.Writer, res *decomp.Result, extra instances.Tables) error {
+	sol, err := m.SolutionOf(res.Plan)
 	if err != nil {
 		return err
 	}

@@ -197,8 +197,8 @@ func (m *Model) WriteMPS(w io.Writer) error { return WriteMPS(w, m.In, m.Opt.Max
 func (m *Model) PlanTables() []string { return nil }
 
 // WritePlan writes the plan CSV.
-func (m *Model) WritePlan(w io.Writer, p *decomp.Plan, _ instances.Tables) error {
-	assign, err := m.AssignmentOf(p)
+func (m *Model) WritePlan(w io.Writer, res *decomp.Result, _ instances.Tables) error {
+	assign, err := m.AssignmentOf(res.Plan)
 	if err != nil {
 		return err
 	}

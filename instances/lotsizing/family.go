@@ -99,9 +99,6 @@ func NewModel(in *Instance, opt Options) (*Model, error) {
 type Model struct {
 	In  *Instance
 	Opt Options
-	// prices are the capacity prices at the best bound of the last result
-	// seen by Extra or Resources; WritePlan's period table shows them.
-	prices []float64
 }
 
 // Name is the instance name.
@@ -154,8 +151,7 @@ func (m *Model) ScheduleOf(p *decomp.Plan) (*Schedule, error) {
 	return s, nil
 }
 
-// PlanJSON is the schedule with its cost and the period loads at the last
-// prices seen.
+// PlanJSON is the schedule with its cost.
 func (m *Model) PlanJSON(p *decomp.Plan) (any, error) {
 	s, err := m.ScheduleOf(p)
 	if err != nil || s == nil {
@@ -164,15 +160,8 @@ func (m *Model) PlanJSON(p *decomp.Plan) (any, error) {
 	return s, nil
 }
 
-func (m *Model) keepPrices(res *decomp.Result) {
-	if res != nil && len(res.Prices) == m.In.Periods() {
-		m.prices = append(m.prices[:0], res.Prices...)
-	}
-}
-
 // Extra adds the period table ("periods") and the sizes.
 func (m *Model) Extra(res *decomp.Result) (map[string]any, error) {
-	m.keepPrices(res)
 	s, err := m.ScheduleOf(res.Plan)
 	if err != nil {
 		return nil, err
@@ -200,7 +189,6 @@ func (m *Model) Extra(res *decomp.Result) (map[string]any, error) {
 // Resources lists the periods' capacities; the price is the capacity row's
 // shadow price at the best bound.
 func (m *Model) Resources(res *decomp.Result) ([]instances.Resource, error) {
-	m.keepPrices(res)
 	s, err := m.ScheduleOf(res.Plan)
 	if err != nil || s == nil {
 		return nil, err
@@ -224,10 +212,9 @@ func (m *Model) PlanTables() []string { return []string{"periods"} }
 
 // WritePlan writes schedule.csv to w (see [WriteScheduleCSV]) and, when
 // extra is not nil, the period table (see [WriteLoadCSV]) to
-// extra.Create("periods"). Its shadow prices are those of the last result
-// given to Extra or Resources (zeros before any).
-func (m *Model) WritePlan(w io.Writer, p *decomp.Plan, extra instances.Tables) error {
-	s, err := m.ScheduleOf(p)
+// extra.Create("periods"), with the result's capacity prices.
+func (m *Model) WritePlan(w io.Writer, res *decomp.Result, extra instances.Tables) error {
+	s, err := m.ScheduleOf(res.Plan)
 	if err != nil {
 		return err
 	}
@@ -244,7 +231,7 @@ func (m *Model) WritePlan(w io.Writer, p *decomp.Plan, extra instances.Tables) e
 	if err != nil {
 		return fmt.Errorf("lotsizing: writing period table: %w", err)
 	}
-	if err := WriteLoadCSV(t, Loads(m.In, s, m.prices)); err != nil {
+	if err := WriteLoadCSV(t, Loads(m.In, s, res.Prices)); err != nil {
 		t.Close()
 		return err
 	}

@@ -47,7 +47,7 @@ func TestScheduleOfRejectsForeignDetail(t *testing.T) {
 		if _, err := m.ScheduleOf(&decomp.Plan{Detail: d}); err == nil || !strings.Contains(err.Error(), "plan detail") {
 			t.Errorf("detail %#v: err %v", d, err)
 		}
-		if err := m.WritePlan(&strings.Builder{}, &decomp.Plan{Detail: d}, nil); err == nil {
+		if err := m.WritePlan(&strings.Builder{}, &decomp.Result{Plan: &decomp.Plan{Detail: d}}, nil); err == nil {
 			t.Errorf("detail %#v: WritePlan accepted it", d)
 		}
 	}
