@@ -91,7 +91,13 @@ type Request struct {
 	// optimum over the points that honour its fixings, or an error wrapping
 	// ErrInfeasible when none does.
 	Fixings []Fixing
+
+	shared any // set by Problem.Prepare; never shipped
 }
+
+// Shared returns what Problem.Share derived from this request's prices, or
+// nil when the problem has no Share. Blocks must treat it as read-only.
+func (r *Request) Shared() any { return r.shared }
 
 // Fixing fixes one of a block's own variables (numbered as in
 // Answer.Primal) to a value.
@@ -244,6 +250,31 @@ type Problem struct {
 	// Plans serialises Plan.Detail for checkpoints; nil when the family's
 	// plans carry no detail or are not checkpointed.
 	Plans PlanCodec
+	// Share, when not nil, derives from a request the data that every
+	// block of an evaluation reads (for example prefix sums of slot prices
+	// shared by thousands of tiny blocks), so that it is computed once per
+	// evaluation and not once per block. The engine calls it through
+	// Prepare before every evaluation; blocks find the result through
+	// Request.Shared. It must depend on the request only (sense, prices,
+	// fixings, workers): an evaluator that ships requests elsewhere does
+	// not ship the result but calls Prepare again on the far side.
+	Share func(req *Request) (any, error)
+}
+
+// Prepare sets req's shared data from p.Share (nil when p has no Share).
+// The engine calls it before every evaluation; an evaluator that decodes
+// a shipped request calls it before solving blocks.
+func (p *Problem) Prepare(req *Request) error {
+	req.shared = nil
+	if p.Share == nil {
+		return nil
+	}
+	v, err := p.Share(req)
+	if err != nil {
+		return fmt.Errorf("decomp: problem %q: preparing shared round data: %w", p.Name, err)
+	}
+	req.shared = v
+	return nil
 }
 
 // PlanCodec serialises a family's Plan.Detail, so that a checkpoint can

@@ -380,6 +380,9 @@ func (r *runner) round(ctx, parent context.Context) error {
 	}
 	st.Round++
 	r.req.Prices = st.Prices
+	if err := p.Prepare(r.req); err != nil {
+		return fmt.Errorf("decomp: round %d: %w", st.Round, err)
+	}
 	if err := s.Evaluator.Evaluate(ctx, p.Blocks, r.req, r.answers); err != nil {
 		if ctx.Err() != nil {
 			st.Round--
@@ -796,7 +799,11 @@ func Relaxed(ctx context.Context, p *Problem, prices []float64, ev Evaluator) (f
 		return 0, nil, err
 	}
 	r := &runner{p: p, answers: make([]Answer, len(p.Blocks)), sub: make([]float64, len(p.Rows))}
-	if err := ev.Evaluate(ctx, p.Blocks, &Request{Sense: p.Sense, Prices: prices, Fixings: fix}, r.answers); err != nil {
+	req := &Request{Sense: p.Sense, Prices: prices, Fixings: fix}
+	if err := p.Prepare(req); err != nil {
+		return 0, nil, err
+	}
+	if err := ev.Evaluate(ctx, p.Blocks, req, r.answers); err != nil {
 		return 0, nil, fmt.Errorf("decomp: %w", err)
 	}
 	return r.reduce(prices), r.answers, nil
