@@ -172,3 +172,57 @@ func (in *Instance) Evaluate(s *Schedule) (int64, error) {
 	}
 	return total, nil
 }
+
+// Horizons returns, per class k, a horizon H_k such that some optimal
+// schedule completes every job on class k by H_k, so that the slots
+// 0..H_k−1 of the time-indexed model exclude no optimal schedule.
+//
+// With r the latest release date, L_k the summed processing time of the
+// jobs eligible on k and p_k the longest of them: H_k = r + L_k when
+// m_k = 1, else H_k = r + ⌈L_k/m_k⌉ + p_k.
+//
+// Why (both objectives are regular: no cost falls when a completion time
+// grows): take an optimal schedule with the least Σ_j C_j, and with every
+// job started as early as its release and its machine's previous job allow
+// (shifting left never raises a completion time). Then a machine idles only
+// before some release, so a machine with load ℓ finishes by r + ℓ. A job j
+// on machine a of class k with m_k = 1 completes by r + L_k. With m_k ≥ 2,
+// let b be the least loaded other machine of class k: ℓ_b ≤ (L_k − ℓ_a)/
+// (m_k − 1). Moving j to the end of b would complete it by r + ℓ_b + p_j
+// and delay no other job, so minimality of Σ C_j gives C_j ≤ r + ℓ_b + p_j.
+// If ℓ_a ≥ L_k/m_k then ℓ_b ≤ L_k/m_k; otherwise C_j ≤ r + ℓ_a < r + L_k/m_k.
+// Either way C_j ≤ r + ⌈L_k/m_k⌉ + p_k.
+func (in *Instance) Horizons() []int {
+	r := 0
+	for _, jb := range in.Jobs {
+		r = max(r, jb.Release)
+	}
+	h := make([]int, len(in.Classes))
+	for k, c := range in.Classes {
+		load, longest := 0, 0
+		for j, jb := range in.Jobs {
+			if in.EligibleOn(j, k) {
+				load += jb.Processing
+				longest = max(longest, jb.Processing)
+			}
+		}
+		if c.Machines == 1 {
+			h[k] = r + load
+		} else {
+			h[k] = r + (load+c.Machines-1)/c.Machines + longest
+		}
+	}
+	return h
+}
+
+// SlotRows lays out the time-indexed capacity rows class by class: the
+// row of class k and slot t (0 <= t < horizons[k]) is offsets[k] + t, and
+// total is the number of rows.
+func SlotRows(horizons []int) (offsets []int, total int) {
+	offsets = make([]int, len(horizons))
+	for k, h := range horizons {
+		offsets[k] = total
+		total += h
+	}
+	return offsets, total
+}
