@@ -79,6 +79,7 @@ type report struct {
 	Seconds       num            `json:"seconds"`
 	Workers       int            `json:"workers"`
 	Seed          uint64         `json:"seed"`
+	Rule          string         `json:"rule"` // the price-update rule
 	Caution       string         `json:"caution"`
 	Rows          []rowJSON      `json:"rows"`
 	Family        map[string]any `json:"family"`

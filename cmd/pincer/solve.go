@@ -8,6 +8,8 @@ import (
 	"math"
 	"os"
 	"runtime"
+	"slices"
+	"strings"
 	"time"
 
 	"github.com/rs/zerolog"
@@ -35,6 +37,7 @@ type runFlags struct {
 	repairEvery int
 	stall       int
 	history     string
+	rule        string
 	checkpoints checkpointFlags // solve only
 }
 
@@ -52,8 +55,9 @@ func (f *runFlags) register(cmd *cobra.Command) {
 	fl.IntVar(&f.top, "top", 5, "shared resources listed in the summary (at least 0)")
 	fl.IntVar(&f.repairEvery, "repair-every", 0, "repair every this many rounds (0: engine default; at least 0)")
 	fl.IntVar(&f.stall, "stall", 0, "stop after this many rounds without a better bound or plan (0: engine default, 300; at least 0)")
+	fl.StringVar(&f.rule, "rule", decomp.Rules()[0], "price-update rule: "+strings.Join(decomp.Rules(), ", "))
 	fl.StringVar(&f.history, "history", "summary", "report history: summary (every improvement plus a thinned trace, at most 2000 rounds) or full")
-	for name, vals := range map[string][]string{"log-format": {"text", "json"}, "history": {"summary", "full"}} {
+	for name, vals := range map[string][]string{"log-format": {"text", "json"}, "history": {"summary", "full"}, "rule": decomp.Rules()} {
 		vals := vals
 		_ = cmd.RegisterFlagCompletionFunc(name, func(*cobra.Command, []string, string) ([]string, cobra.ShellCompDirective) {
 			return vals, cobra.ShellCompDirectiveNoFileComp
@@ -71,6 +75,8 @@ func (f *runFlags) check() error {
 		return bad("log-format", f.logFormat, "one of text, json")
 	case f.history != "summary" && f.history != "full":
 		return bad("history", f.history, "one of summary, full")
+	case !slices.Contains(decomp.Rules(), f.rule):
+		return bad("rule", f.rule, "one of "+strings.Join(decomp.Rules(), ", "))
 	case f.workers < 1:
 		return bad("workers", f.workers, "at least 1")
 	case f.time < 0:
@@ -150,6 +156,9 @@ func solveModel(ctx context.Context, stdout, stderr io.Writer, f *runFlags, file
 		Gap: f.gap, Time: f.time, Rounds: f.rounds, Seed: f.seed, RepairEvery: f.repairEvery, StallRounds: f.stall,
 		Workers: f.workers, Evaluator: decomp.Pool{Workers: f.workers},
 	}
+	if settings.Method, err = decomp.NewMethod(f.rule); err != nil {
+		return nil, badInput(err)
+	}
 	if f.gap == 0 {
 		settings.Gap = -1 // run to proof or a limit
 	}
@@ -177,6 +186,9 @@ func solveModel(ctx context.Context, stdout, stderr io.Writer, f *runFlags, file
 	}
 	if f.report != "" {
 		rep, err := buildReport(f.format, file, f.opts.values().Int("index"), f.workers, f.seed, f.history == "full", m, res)
+		if rep != nil {
+			rep.Rule = f.rule
+		}
 		if err != nil {
 			return res, &exitError{code: exitInternal, err: err}
 		}
