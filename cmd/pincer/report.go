@@ -71,19 +71,21 @@ type report struct {
 	BoundKind     string `json:"bound_kind"`
 	// RoundedBound is the bound rounded to the next integer toward the
 	// plan when the objective is integral (null otherwise).
-	RoundedBound  *num           `json:"rounded_bound"`
-	Gap           num            `json:"gap"`
-	ProvedOptimal bool           `json:"proved_optimal"`
-	Stop          string         `json:"stop"`
-	Rounds        int            `json:"rounds"`
-	Seconds       num            `json:"seconds"`
-	Workers       int            `json:"workers"`
-	Seed          uint64         `json:"seed"`
-	Rule          string         `json:"rule"` // the price-update rule
-	Caution       string         `json:"caution"`
-	Rows          []rowJSON      `json:"rows"`
-	Family        map[string]any `json:"family"`
-	History       []historyJSON  `json:"history"`
+	RoundedBound  *num   `json:"rounded_bound"`
+	Gap           num    `json:"gap"`
+	ProvedOptimal bool   `json:"proved_optimal"`
+	Stop          string `json:"stop"`
+	Rounds        int    `json:"rounds"`
+	Seconds       num    `json:"seconds"`
+	Workers       int    `json:"workers"`
+	Seed          uint64 `json:"seed"`
+	Rule          string `json:"rule"` // the price-update rule
+	// WarmStart says where the starting prices came from (null: zero).
+	WarmStart *warmJSON      `json:"warm_start"`
+	Caution   string         `json:"caution"`
+	Rows      []rowJSON      `json:"rows"`
+	Family    map[string]any `json:"family"`
+	History   []historyJSON  `json:"history"`
 	// HistoryKept says which rounds history holds: "full" or "summary"
 	// (every improvement plus a thinned trace).
 	HistoryKept string `json:"history_kept"`

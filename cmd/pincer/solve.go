@@ -39,6 +39,7 @@ type runFlags struct {
 	history     string
 	rule        string
 	checkpoints checkpointFlags // solve only
+	warm        warmFlags       // solve only
 }
 
 func (f *runFlags) register(cmd *cobra.Command) {
@@ -127,6 +128,9 @@ func newSolveCmd(chosen string) *cobra.Command {
 			if err := f.checkpoints.check(); err != nil {
 				return err
 			}
+			if err := f.warm.check(f.checkpoints.resume); err != nil {
+				return err
+			}
 			m, err := load(f.format, args[0], f.opts)
 			if err != nil {
 				return err
@@ -141,6 +145,7 @@ func newSolveCmd(chosen string) *cobra.Command {
 	f.opts = familyOptions(cmd, &f.format, chosen)
 	f.register(cmd)
 	f.checkpoints.register(cmd)
+	f.warm.register(cmd)
 	return cmd
 }
 
@@ -158,6 +163,12 @@ func solveModel(ctx context.Context, stdout, stderr io.Writer, f *runFlags, file
 	}
 	if settings.Method, err = decomp.NewMethod(f.rule); err != nil {
 		return nil, badInput(err)
+	}
+	var warm *warmJSON
+	if f.warm.path != "" {
+		if warm, err = applyWarmStart(f.warm.path, f.format, m, p); err != nil {
+			return nil, err
+		}
 	}
 	if f.gap == 0 {
 		settings.Gap = -1 // run to proof or a limit
@@ -187,7 +198,7 @@ func solveModel(ctx context.Context, stdout, stderr io.Writer, f *runFlags, file
 	if f.report != "" {
 		rep, err := buildReport(f.format, file, f.opts.values().Int("index"), f.workers, f.seed, f.history == "full", m, res)
 		if rep != nil {
-			rep.Rule = f.rule
+			rep.Rule, rep.WarmStart = f.rule, warm
 		}
 		if err != nil {
 			return res, &exitError{code: exitInternal, err: err}
