@@ -38,6 +38,7 @@ type runFlags struct {
 	stall       int
 	history     string
 	rule        string
+	plot        string
 	checkpoints checkpointFlags // solve only
 	warm        warmFlags       // solve only
 }
@@ -57,6 +58,7 @@ func (f *runFlags) register(cmd *cobra.Command) {
 	fl.IntVar(&f.repairEvery, "repair-every", 0, "repair every this many rounds (0: engine default; at least 0)")
 	fl.IntVar(&f.stall, "stall", 0, "stop after this many rounds without a better bound or plan (0: engine default, 300; at least 0)")
 	fl.StringVar(&f.rule, "rule", decomp.Rules()[0], "price-update rule: "+strings.Join(decomp.Rules(), ", "))
+	fl.StringVar(&f.plot, "plot", "", "draw bound, plan value and the most binding rows' prices over time as SVG to this file")
 	fl.StringVar(&f.history, "history", "summary", "report history: summary (every improvement plus a thinned trace, at most 2000 rounds) or full")
 	for name, vals := range map[string][]string{"log-format": {"text", "json"}, "history": {"summary", "full"}, "rule": decomp.Rules()} {
 		vals := vals
@@ -96,6 +98,12 @@ func (f *runFlags) check() error {
 		return badInput(errors.New("--report and --plan cannot both be - (standard output)"))
 	}
 	if err := checkWritable("--report", f.report); err != nil {
+		return err
+	}
+	if f.plot == stdoutPath {
+		return badInput(errors.New("--plot -: the plot must go to a file"))
+	}
+	if err := checkWritable("--plot", f.plot); err != nil {
 		return err
 	}
 	return checkWritable("--plan", f.plan)
@@ -174,8 +182,17 @@ func solveModel(ctx context.Context, stdout, stderr io.Writer, f *runFlags, file
 		settings.Gap = -1 // run to proof or a limit
 	}
 	prog := newProgress(stderr, f)
+	var obs observers
 	if prog != nil {
-		settings.Observer = prog
+		obs = append(obs, prog)
+	}
+	var trace *priceTrace
+	if f.plot != "" {
+		trace = newPriceTrace(len(p.Rows))
+		obs = append(obs, trace)
+	}
+	if len(obs) > 0 {
+		settings.Observer = obs
 	}
 	state, err := prepareCheckpoints(f, file, p, &settings)
 	if err != nil {
@@ -194,6 +211,11 @@ func solveModel(ctx context.Context, stdout, stderr io.Writer, f *runFlags, file
 	}
 	if err := printSummary(summary, m, p.IntegralObjective, res, f.top); err != nil {
 		return res, &exitError{code: exitInternal, err: err}
+	}
+	if f.plot != "" {
+		if err := writePlotFile(f.plot, m.Name(), res, trace, f.top); err != nil {
+			return res, &exitError{code: exitInternal, err: err}
+		}
 	}
 	if f.report != "" {
 		rep, err := buildReport(f.format, file, f.opts.values().Int("index"), f.workers, f.seed, f.history == "full", m, res)
