@@ -331,11 +331,12 @@ func readFloats(data []byte, into []float64) error {
 }
 
 // Rules lists the names NewMethod accepts; the first is the default.
-func Rules() []string { return []string{"subgradient", "deflected", "volume"} }
+func Rules() []string { return []string{"subgradient", "deflected", "volume", "boxstep"} }
 
 // NewMethod returns a fresh price-update rule by name (see Rules):
-// "subgradient" ([Subgradient]), "deflected" ([Deflected]) or "volume"
-// ([Volume]), each with its zero-value settings.
+// "subgradient" ([Subgradient]), "deflected" ([Deflected]), "volume"
+// ([Volume]) or "boxstep" ([Boxstep], for few coupling rows), each with
+// its zero-value settings.
 func NewMethod(name string) (Method, error) {
 	switch name {
 	case "subgradient", "":
@@ -344,6 +345,8 @@ func NewMethod(name string) (Method, error) {
 		return &Deflected{}, nil
 	case "volume":
 		return &Volume{}, nil
+	case "boxstep":
+		return &Boxstep{}, nil
 	}
 	return nil, fmt.Errorf("decomp: unknown price rule %q (want one of %v)", name, Rules())
 }

@@ -172,6 +172,9 @@ func solveModel(ctx context.Context, stdout, stderr io.Writer, f *runFlags, file
 	if settings.Method, err = decomp.NewMethod(f.rule); err != nil {
 		return nil, badInput(err)
 	}
+	if err := ruleFits(f.rule, p); err != nil {
+		return nil, err
+	}
 	var warm *warmJSON
 	if f.warm.path != "" {
 		if warm, err = applyWarmStart(f.warm.path, f.format, m, p); err != nil {
