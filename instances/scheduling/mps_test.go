@@ -1,0 +1,88 @@
+package scheduling
+
+import (
+	"bytes"
+	"io"
+	"math"
+	"os/exec"
+	"strings"
+	"testing"
+
+	"pincer/internal/oracle"
+)
+
+// Source of the expected values: exhaustive search (ioBruteForce) on the
+// same instance; CBC solves the exported time-indexed MIP.
+func TestMPSAgainstCBCAndBruteForce(t *testing.T) {
+	if _, err := exec.LookPath("cbc"); err != nil {
+		t.Skip("cbc not installed (apt-get install coinor-cbc); the MPS oracle check is skipped")
+	}
+	for _, c := range []struct {
+		name string
+		cfg  GenerateConfig
+	}{
+		// The case: 10 jobs on 2 identical machines.
+		{"10 jobs 2 machines", GenerateConfig{Jobs: 10, Machines: 2, TF: 0.6, RDD: 0.6, MaxProcessing: 8, Seed: 3}},
+		// Release dates and eligibility over two classes (1 + 2 machines).
+		{"7 jobs 2 classes releases", GenerateConfig{Jobs: 7, Machines: 2, Classes: 2, TF: 1, RDD: 0.2, MaxProcessing: 6,
+			ReleaseFactor: 0.5, EligibleShare: 0.6, Seed: 5}},
+		{"6 jobs weighted completion", GenerateConfig{Jobs: 6, Machines: 2, Classes: 2, MaxProcessing: 5,
+			ReleaseFactor: 0.8, EligibleShare: 0.5, Objective: WeightedCompletion, Seed: 11}},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			in := Generate(c.cfg)
+			released, restricted := 0, 0
+			for _, jb := range in.Jobs {
+				released += min(jb.Release, 1)
+				restricted += min(len(jb.Eligible), 1)
+			}
+			if c.cfg.ReleaseFactor > 0 && (released == 0 || restricted == 0) {
+				t.Fatalf("the case should have release dates and eligibility, has %d and %d jobs with them", released, restricted)
+			}
+			want, s := ioBruteForce(t, in)
+			if want == 0 {
+				t.Fatal("the instance is trivial (optimum 0); pick tighter due dates")
+			}
+			if rep := Verify(in, s); !rep.Feasible || rep.Value != want {
+				t.Fatalf("brute-force schedule does not verify: %+v (want value %d)", rep, want)
+			}
+			out := oracle.CBC(t, func(w io.Writer) error { return WriteMPS(w, in) }, 20)
+			if !out.Optimal {
+				t.Fatalf("cbc did not prove optimality:\n%s", out.Output)
+			}
+			if math.Abs(out.Objective-float64(want)) > 1e-6 {
+				t.Fatalf("cbc optimum %v, brute force %d", out.Objective, want)
+			}
+			t.Logf("%s: optimum %d (cbc and brute force agree)", in.Name, want)
+		})
+	}
+}
+
+func TestMPSShapeAndLimit(t *testing.T) {
+	in := &Instance{Name: "two jobs", Classes: []Class{{ID: "A", Machines: 1}, {ID: "B", Machines: 2}},
+		Jobs: []Job{{ID: "a", Processing: 2, Weight: 3, Due: 1, Eligible: []int{0}}, {ID: "b", Processing: 1, Weight: 1, Due: 0, Release: 1}}}
+	var buf bytes.Buffer
+	if err := WriteMPS(&buf, in); err != nil {
+		t.Fatal(err)
+	}
+	text := buf.String()
+	// Horizons by hand (Instance.Horizons): class A, 1 machine: r = 1,
+	// load 3 -> 4; class B, 2 machines: load 1, longest 1 -> 1 + 1 + 1 = 3.
+	// Job a on A starts 0..2 (3 columns); b on A starts 1..3, on B 1..2.
+	for _, want := range []string{"NAME two_jobs", " E job_1", " L cap_1_3", " L cap_2_2", "    x_1_1_0 obj 3", "    x_2_2_2 cap_2_2 1", "    rhs cap_2_0 2", " BV bnd x_2_1_3"} {
+		if !strings.Contains(text, want) {
+			t.Errorf("MPS lacks %q:\n%s", want, text)
+		}
+	}
+	if strings.Contains(text, "x_1_2_") || strings.Contains(text, "cap_1_4") || strings.Contains(text, "x_2_2_3") {
+		t.Errorf("MPS has a column or row outside the model:\n%s", text)
+	}
+	if cols, _ := MPSSize(in); cols != 3+3+2 {
+		t.Errorf("MPSSize says %d columns, want 8", cols)
+	}
+	big := Generate(Benchmark5000(1))
+	err := WriteMPS(io.Discard, big)
+	if err == nil || !strings.Contains(err.Error(), "stops at 2000000 columns") {
+		t.Fatalf("the 5,000-job instance was not refused clearly: %v", err)
+	}
+}
