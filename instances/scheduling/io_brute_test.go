@@ -2,6 +2,7 @@ package scheduling
 
 import (
 	"math"
+	"sort"
 	"testing"
 )
 
@@ -107,4 +108,43 @@ func TestIOBruteForceHandCase(t *testing.T) {
 	if v != 3 || s.Start[1] != 0 || s.Start[0] != 3 {
 		t.Fatalf("got %d with %+v, want 3 with b first", v, s)
 	}
+}
+
+// ioListSchedule is a plain feasible schedule for tests of the output:
+// jobs by release then due date, each on the eligible machine where it can
+// start first.
+func ioListSchedule(in *Instance) *Schedule {
+	n := len(in.Jobs)
+	s := &Schedule{Class: make([]int, n), Machine: make([]int, n), Start: make([]int, n)}
+	order := make([]int, n)
+	for j := range order {
+		order[j] = j
+	}
+	sort.SliceStable(order, func(a, b int) bool {
+		ja, jb := in.Jobs[order[a]], in.Jobs[order[b]]
+		if ja.Release != jb.Release {
+			return ja.Release < jb.Release
+		}
+		return ja.Due < jb.Due
+	})
+	free := make([][]int, len(in.Classes))
+	for k, c := range in.Classes {
+		free[k] = make([]int, c.Machines)
+	}
+	for _, j := range order {
+		bk, bm, bs := -1, -1, 0
+		for k := range in.Classes {
+			if !in.EligibleOn(j, k) {
+				continue
+			}
+			for m, f := range free[k] {
+				if st := max(f, in.Jobs[j].Release); bk < 0 || st < bs {
+					bk, bm, bs = k, m, st
+				}
+			}
+		}
+		s.Class[j], s.Machine[j], s.Start[j] = bk, bm, bs
+		free[bk][bm] = bs + in.Jobs[j].Processing
+	}
+	return s
 }
