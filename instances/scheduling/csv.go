@@ -38,10 +38,11 @@ const MaxCSVNumber = 1_000_000_000
 //
 //   - machines.csv: class (a non-empty id, no ";"), count (machines in the
 //     class, at least 1), optional name.
-//   - jobs.csv: id, name (may be empty), processing_time (at least 1),
-//     weight, due (both at least 0), optional release (at least 0; empty
-//     means 0) and optional eligible_classes: class ids from machines.csv
-//     separated by ";" (see EligibleSeparator); empty means every class.
+//   - jobs.csv: id, name (may be empty or left out), processing_time (at
+//     least 1), weight, due (both at least 0), optional release (at least
+//     0; empty means 0) and optional eligible_classes: class ids from
+//     machines.csv separated by ";" (see EligibleSeparator); empty means
+//     every class.
 //
 // Numbers are integers (time slots) up to MaxCSVNumber. The objective is
 // WeightedTardiness; the instance is named after the folder. Errors are
@@ -98,7 +99,7 @@ func readCSVTables(jobs, machines io.Reader, jobsFile, machinesFile string) (*In
 	}
 
 	jobLine := map[string]int{}
-	err = csvReadTable(jobs, jobsFile, []string{"id", "name", "processing_time", "weight", "due"}, func(row *csvRow) error {
+	err = csvReadTable(jobs, jobsFile, []string{"id", "processing_time", "weight", "due"}, func(row *csvRow) error {
 		id, err := row.id("id", "job id", jobLine)
 		if err != nil {
 			return err

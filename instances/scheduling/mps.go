@@ -54,6 +54,18 @@ func MPSSize(in *Instance) (columns, entries int64) {
 // whose model has more than MPSMaxColumns columns or MPSMaxEntries matrix
 // entries, with the sizes in the message.
 func WriteMPS(w io.Writer, in *Instance) error {
+	return writeMPS(w, in, true)
+}
+
+// WriteLPRelaxationMPS writes the linear relaxation of the model WriteMPS
+// writes: the same rows and columns, without integer markers, each column
+// bounded by 0 <= x <= 1. Its optimum is the time-indexed LP bound, which
+// no valid bound of the decomposition may pass.
+func WriteLPRelaxationMPS(w io.Writer, in *Instance) error {
+	return writeMPS(w, in, false)
+}
+
+func writeMPS(w io.Writer, in *Instance, integer bool) error {
 	if err := in.Validate(); err != nil {
 		return err
 	}
@@ -73,7 +85,11 @@ func WriteMPS(w io.Writer, in *Instance) error {
 	if name == "" {
 		name = "scheduling"
 	}
-	fmt.Fprintf(bw, "* time-indexed scheduling model: %d jobs, %d machine classes, %s\n", len(in.Jobs), len(in.Classes), in.Objective)
+	kind := "0-1 program"
+	if !integer {
+		kind = "linear relaxation"
+	}
+	fmt.Fprintf(bw, "* time-indexed scheduling model (%s): %d jobs, %d machine classes, %s\n", kind, len(in.Jobs), len(in.Classes), in.Objective)
 	fmt.Fprintf(bw, "* x_j_k_s = 1 when job j (1-based) starts on class k (1-based) at time s\n")
 	fmt.Fprintf(bw, "* horizons per class: %s\n", joinInts(hs))
 	fmt.Fprintf(bw, "NAME %s\nROWS\n N obj\n", name)
@@ -85,7 +101,10 @@ func WriteMPS(w io.Writer, in *Instance) error {
 			fmt.Fprintf(bw, " L cap_%d_%d\n", k+1, t)
 		}
 	}
-	bw.WriteString("COLUMNS\n    M1 'MARKER' 'INTORG'\n")
+	bw.WriteString("COLUMNS\n")
+	if integer {
+		bw.WriteString("    M1 'MARKER' 'INTORG'\n")
+	}
 	buf := make([]byte, 0, 128)
 	mpsColumns(in, hs, func(j, k, s int) {
 		jb := in.Jobs[j]
@@ -108,7 +127,10 @@ func WriteMPS(w io.Writer, in *Instance) error {
 			line("cap_"+strconv.Itoa(k+1)+"_"+strconv.Itoa(t), 1)
 		}
 	})
-	bw.WriteString("    M2 'MARKER' 'INTEND'\nRHS\n")
+	if integer {
+		bw.WriteString("    M2 'MARKER' 'INTEND'\n")
+	}
+	bw.WriteString("RHS\n")
 	for j := range in.Jobs {
 		fmt.Fprintf(bw, "    rhs job_%d 1\n", j+1)
 	}
@@ -119,7 +141,11 @@ func WriteMPS(w io.Writer, in *Instance) error {
 	}
 	bw.WriteString("BOUNDS\n")
 	mpsColumns(in, hs, func(j, k, s int) {
-		bw.WriteString(" BV bnd " + mpsColumn(j, k, s) + "\n")
+		if integer {
+			bw.WriteString(" BV bnd " + mpsColumn(j, k, s) + "\n")
+		} else {
+			bw.WriteString(" UP bnd " + mpsColumn(j, k, s) + " 1\n")
+		}
 	})
 	bw.WriteString("ENDATA\n")
 	if err := bw.Flush(); err != nil {

@@ -4,7 +4,11 @@ import (
 	"bytes"
 	"io"
 	"math"
+	"os"
 	"os/exec"
+	"path/filepath"
+	"regexp"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -84,5 +88,51 @@ func TestMPSShapeAndLimit(t *testing.T) {
 	err := WriteMPS(io.Discard, big)
 	if err == nil || !strings.Contains(err.Error(), "stops at 2000000 columns") {
 		t.Fatalf("the 5,000-job instance was not refused clearly: %v", err)
+	}
+}
+
+// ioCBCLinear solves a linear model with cbc and returns its optimum; it
+// skips when cbc is absent.
+func ioCBCLinear(t *testing.T, write func(io.Writer) error) float64 {
+	t.Helper()
+	bin, err := exec.LookPath("cbc")
+	if err != nil {
+		t.Skip("cbc not installed (apt-get install coinor-cbc); the LP oracle check is skipped")
+	}
+	path := filepath.Join(t.TempDir(), "lp.mps")
+	var buf bytes.Buffer
+	if err := write(&buf); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(path, buf.Bytes(), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out, err := exec.Command(bin, path, "sec", "20", "solve").CombinedOutput()
+	if err != nil {
+		t.Fatalf("cbc: %v\n%s", err, out)
+	}
+	m := regexp.MustCompile(`(?m)^Optimal objective (\S+)`).FindSubmatch(out)
+	if m == nil || !bytes.Contains(out, []byte("read with 0 errors")) {
+		t.Fatalf("cbc gave no optimal LP objective:\n%s", out)
+	}
+	v, err := strconv.ParseFloat(string(m[1]), 64)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return v
+}
+
+// The linear relaxation's optimum (cbc) can be no more than the optimum
+// (exhaustive search), and on these instances it is positive.
+func TestLPRelaxationBelowOptimum(t *testing.T) {
+	for seed := uint64(1); seed <= 3; seed++ {
+		in := Generate(GenerateConfig{Jobs: 8, Machines: 2, Classes: 2, TF: 0.8, RDD: 0.4, MaxProcessing: 6,
+			ReleaseFactor: 0.4, EligibleShare: 0.4, Seed: seed})
+		opt, _ := ioBruteForce(t, in)
+		lp := ioCBCLinear(t, func(w io.Writer) error { return WriteLPRelaxationMPS(w, in) })
+		if lp > float64(opt)+1e-6 || lp < 0 {
+			t.Fatalf("seed %d: LP value %v, optimum %d", seed, lp, opt)
+		}
+		t.Logf("seed %d: LP %v <= optimum %d", seed, lp, opt)
 	}
 }
