@@ -43,16 +43,17 @@ const (
 // WriteGanttSVG draws the schedule as an SVG Gantt chart: one lane per
 // machine (class by class), a time axis with ticks, and a legend.
 //
-// Up to opt.DetailLimit jobs every job is a bar coloured by class, labelled
-// with its name where the bar is wide enough, with a tooltip giving start,
-// end, due date and tardiness; late jobs are drawn in red with a dark
-// outline. Past that the chart aggregates: time is cut into opt.Buckets
-// buckets, each lane shows per bucket the share of time its machine is
-// busy (darker is busier) and a red strip where late jobs end (redder is
-// more of them). With more than 120 machines the lanes are the classes
-// (busy share over the class's machines). The file then has at most a few
-// thousand elements whatever the number of jobs. The output depends only
-// on the arguments.
+// Up to opt.DetailLimit jobs on at most 120 machines, every job is a bar
+// coloured by class, labelled with its name (shortened if need be) where
+// the bar is wide enough, with a tooltip giving start, end, due date and
+// tardiness; late jobs are drawn in red with a dark outline. Past that the
+// chart aggregates: time is cut into opt.Buckets buckets, each lane shows
+// per bucket the share of time its machine is busy (darker is busier) and
+// a red strip where late jobs end (redder is more of them). With more than
+// 120 machines the lanes are the classes (busy share over the class's
+// machines), at most 120 of them. The file then has at most a few thousand
+// elements whatever the number of jobs (at most 2 per lane and bucket). The
+// output depends only on the arguments.
 func WriteGanttSVG(w io.Writer, in *Instance, s *Schedule, opt GanttOptions) error {
 	if err := scheduleShape(in, s); err != nil {
 		return err
@@ -76,7 +77,7 @@ func WriteGanttSVG(w io.Writer, in *Instance, s *Schedule, opt GanttOptions) err
 	g.w = bw
 	g.header()
 	g.axis() // before the bars, so that grid lines stay behind them
-	if len(in.Jobs) <= opt.DetailLimit {
+	if g.detailed {
 		g.detail()
 	} else {
 		g.aggregate()
@@ -95,6 +96,8 @@ type gantt struct {
 	w   *bufio.Writer
 
 	perClass bool // one lane per class instead of per machine
+	detailed bool // one bar per job
+	hidden   int  // classes beyond the lane limit, not drawn
 	lanes    int
 	laneOf   func(j int) int
 	span     int // time axis runs 0..span
@@ -121,9 +124,16 @@ func (g *gantt) layout() {
 		machines += c.Machines
 	}
 	g.perClass = machines > ganttMaxLanes
+	g.detailed = len(in.Jobs) <= g.opt.DetailLimit && !g.perClass
 	if g.perClass {
-		g.lanes = len(in.Classes)
-		g.laneOf = func(j int) int { return s.Class[j] }
+		g.lanes = min(len(in.Classes), ganttMaxLanes)
+		g.hidden = len(in.Classes) - g.lanes
+		g.laneOf = func(j int) int {
+			if s.Class[j] >= g.lanes {
+				return -1
+			}
+			return s.Class[j]
+		}
 	} else {
 		g.lanes = machines
 		g.laneOf = func(j int) int { return first[s.Class[j]] + s.Machine[j] }
@@ -143,7 +153,7 @@ func (g *gantt) layout() {
 	g.left = math.Min(260, 20+7*float64(longest+4))
 	g.top = 62
 	g.laneH = 24
-	if len(in.Jobs) > g.opt.DetailLimit {
+	if !g.detailed {
 		g.laneH = 16
 	}
 	g.height = g.top + float64(g.lanes)*g.laneH + 50
@@ -184,7 +194,7 @@ func (g *gantt) header() {
 	g.p(`<rect width="100%%" height="100%%" fill="#ffffff"/>` + "\n")
 	g.p(`<text x="10" y="20" font-size="15" font-weight="bold">%s</text>`+"\n", esc(g.opt.Title))
 	var note string
-	if len(g.in.Jobs) <= g.opt.DetailLimit {
+	if g.detailed {
 		note = fmt.Sprintf("%d jobs, %d late (red, dark outline); bars are labelled where there is room", len(g.in.Jobs), g.tardy)
 	} else {
 		lanes := "machine"
@@ -193,6 +203,9 @@ func (g *gantt) header() {
 		}
 		note = fmt.Sprintf("%d jobs, %d late; one lane per %s, time in buckets of %s: shade = share of time busy, red strip = late jobs ending",
 			len(g.in.Jobs), g.tardy, lanes, strconv.FormatFloat(g.bucketWidth(), 'f', -1, 64))
+		if g.hidden > 0 {
+			note += fmt.Sprintf("; the last %d classes are not drawn", g.hidden)
+		}
 	}
 	g.p(`<text x="10" y="36" fill="#444444">%s</text>`+"\n", esc(note))
 	g.legend()
@@ -280,6 +293,9 @@ func (g *gantt) aggregate() {
 	}
 	for j, jb := range in.Jobs {
 		l := g.laneOf(j)
+		if l < 0 {
+			continue
+		}
 		st, end := s.Start[j], s.Start[j]+jb.Processing
 		for b := st / bwid; b < nb && b*bwid < end; b++ {
 			lo, hi := max(st, b*bwid), min(end, (b+1)*bwid)

@@ -115,3 +115,16 @@ func TestGanttStep(t *testing.T) {
 		}
 	}
 }
+
+// Many one-machine classes: 120 lanes are drawn, the rest is named.
+func TestGanttCapsLanes(t *testing.T) {
+	in := Generate(GenerateConfig{Jobs: 300, Machines: 200, Classes: 200, TF: 0.5, RDD: 0.5, Seed: 2})
+	var buf bytes.Buffer
+	if err := WriteGanttSVG(&buf, in, ioListSchedule(in), GanttOptions{}); err != nil {
+		t.Fatal(err)
+	}
+	c := svgCount(t, buf.Bytes())
+	if c["g.job"] != 0 || !strings.Contains(buf.String(), "the last 80 classes are not drawn") || strings.Contains(buf.String(), ">K121 (1)<") {
+		t.Fatalf("lane cap not applied: %v", c)
+	}
+}
