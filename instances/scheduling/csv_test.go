@@ -129,7 +129,7 @@ func FuzzReadCSVTables(f *testing.F) {
 		files := map[string]*strings.Builder{}
 		err = WriteCSVTo(func(name string) (io.WriteCloser, error) {
 			files[name] = &strings.Builder{}
-			return testCloser{files[name]}, nil
+			return ioCloser{files[name]}, nil
 		}, in)
 		if err != nil {
 			t.Fatalf("write back: %v", err)
@@ -144,7 +144,7 @@ func FuzzReadCSVTables(f *testing.F) {
 	})
 }
 
-// testCloser lets a strings.Builder stand for a file.
-type testCloser struct{ io.Writer }
+// ioCloser lets a strings.Builder stand for a file.
+type ioCloser struct{ io.Writer }
 
-func (testCloser) Close() error { return nil }
+func (ioCloser) Close() error { return nil }

@@ -115,7 +115,7 @@ late collections?
 // priced hours is a stretch where hiring a machine or adding a shift would
 // pay; windows are from BusiestWindows.
 func WriteDemoExplanation(w io.Writer, in *Instance, s *Schedule, windows []BusyWindow) error {
-	if err := scheduleShape(in, s); err != nil {
+	if err := ioCheckShape(in, s); err != nil {
 		return err
 	}
 	var lost int64
@@ -134,7 +134,7 @@ func WriteDemoExplanation(w io.Writer, in *Instance, s *Schedule, windows []Busy
 	}
 	for _, win := range windows {
 		p("  One more %s (hired, or an extra crew) from %s to %s would save about %.1f points.\n",
-			className(in, win.Class), demoClock(win.From), demoClock(win.To), win.Saving)
+			ioClassName(in, win.Class), demoClock(win.From), demoClock(win.To), win.Saving)
 	}
 	_, err := fmt.Fprintln(w, "The plan is decision support: the shop floor checks it against its own rules before use.")
 	if err != nil {

@@ -55,7 +55,7 @@ const (
 // elements whatever the number of jobs (at most 2 per lane and bucket). The
 // output depends only on the arguments.
 func WriteGanttSVG(w io.Writer, in *Instance, s *Schedule, opt GanttOptions) error {
-	if err := scheduleShape(in, s); err != nil {
+	if err := ioCheckShape(in, s); err != nil {
 		return err
 	}
 	if opt.Width <= 0 {
@@ -110,8 +110,8 @@ type gantt struct {
 
 func (g *gantt) p(format string, a ...any) { fmt.Fprintf(g.w, format, a...) }
 
-// gf writes a pixel coordinate with one decimal.
-func gf(v float64) string { return strconv.FormatFloat(v, 'f', 1, 64) }
+// ganttNum writes a pixel coordinate with one decimal.
+func ganttNum(v float64) string { return strconv.FormatFloat(v, 'f', 1, 64) }
 
 func (g *gantt) x(t float64) float64 { return g.left + t*float64(g.opt.Width)/float64(g.span) }
 
@@ -148,7 +148,7 @@ func (g *gantt) layout() {
 	}
 	longest := 0
 	for k := range in.Classes {
-		longest = max(longest, len([]rune(className(in, k))))
+		longest = max(longest, len([]rune(ioClassName(in, k))))
 	}
 	g.left = math.Min(260, 20+7*float64(longest+4))
 	g.top = 62
@@ -162,11 +162,11 @@ func (g *gantt) layout() {
 // laneLabel names lane l.
 func (g *gantt) laneLabel(l int) string {
 	if g.perClass {
-		return fmt.Sprintf("%s (%d)", className(g.in, l), g.in.Classes[l].Machines)
+		return fmt.Sprintf("%s (%d)", ioClassName(g.in, l), g.in.Classes[l].Machines)
 	}
 	for k, c := range g.in.Classes {
 		if l < c.Machines {
-			return fmt.Sprintf("%s %d", className(g.in, k), l+1)
+			return fmt.Sprintf("%s %d", ioClassName(g.in, k), l+1)
 		}
 		l -= c.Machines
 	}
@@ -190,9 +190,9 @@ func (g *gantt) laneClass(l int) int {
 func (g *gantt) header() {
 	width := g.left + float64(g.opt.Width) + 30
 	g.p(`<svg xmlns="http://www.w3.org/2000/svg" width="%s" height="%s" viewBox="0 0 %s %s" font-family="sans-serif" font-size="11">`+"\n",
-		gf(width), gf(g.height), gf(width), gf(g.height))
+		ganttNum(width), ganttNum(g.height), ganttNum(width), ganttNum(g.height))
 	g.p(`<rect width="100%%" height="100%%" fill="#ffffff"/>` + "\n")
-	g.p(`<text x="10" y="20" font-size="15" font-weight="bold">%s</text>`+"\n", esc(g.opt.Title))
+	g.p(`<text x="10" y="20" font-size="15" font-weight="bold">%s</text>`+"\n", ganttEscape(g.opt.Title))
 	var note string
 	if g.detailed {
 		note = fmt.Sprintf("%d jobs, %d late (red, dark outline); bars are labelled where there is room", len(g.in.Jobs), g.tardy)
@@ -207,14 +207,14 @@ func (g *gantt) header() {
 			note += fmt.Sprintf("; the last %d classes are not drawn", g.hidden)
 		}
 	}
-	g.p(`<text x="10" y="36" fill="#444444">%s</text>`+"\n", esc(note))
+	g.p(`<text x="10" y="36" fill="#444444">%s</text>`+"\n", ganttEscape(note))
 	g.legend()
 	for l := 0; l < g.lanes; l++ {
 		y := g.top + float64(l)*g.laneH
 		if l%2 == 1 {
-			g.p(`<rect x="%s" y="%s" width="%d" height="%s" fill="#f3f3f3"/>`+"\n", gf(g.left), gf(y), g.opt.Width, gf(g.laneH))
+			g.p(`<rect x="%s" y="%s" width="%d" height="%s" fill="#f3f3f3"/>`+"\n", ganttNum(g.left), ganttNum(y), g.opt.Width, ganttNum(g.laneH))
 		}
-		g.p(`<text x="%s" y="%s" text-anchor="end">%s</text>`+"\n", gf(g.left-6), gf(y+g.laneH/2+4), esc(g.laneLabel(l)))
+		g.p(`<text x="%s" y="%s" text-anchor="end">%s</text>`+"\n", ganttNum(g.left-6), ganttNum(y+g.laneH/2+4), ganttEscape(g.laneLabel(l)))
 	}
 }
 
@@ -224,20 +224,20 @@ func (g *gantt) legend() {
 	x := 10.0
 	item := func(fill, edge, label string) {
 		g.p(`<rect x="%s" y="44" width="10" height="10" fill="%s" stroke="%s"/><text x="%s" y="53">%s</text>`+"\n",
-			gf(x), fill, edge, gf(x+14), esc(label))
+			ganttNum(x), fill, edge, ganttNum(x+14), ganttEscape(label))
 		x += 14 + 6.2*float64(len([]rune(label))) + 14
 	}
 	for k := range g.in.Classes {
 		if k == len(pal) { // the palette repeats; so would the legend
 			break
 		}
-		item(pal[k], pal[k], className(g.in, k))
+		item(pal[k], pal[k], ioClassName(g.in, k))
 	}
 	item(ganttLate, ganttLateEdge, "late")
 }
 
-// esc escapes text for XML.
-func esc(s string) string {
+// ganttEscape escapes text for XML.
+func ganttEscape(s string) string {
 	var b strings.Builder
 	xml.EscapeText(&b, []byte(s))
 	return b.String()
@@ -246,7 +246,7 @@ func esc(s string) string {
 func (g *gantt) detail() {
 	in, s := g.in, g.s
 	pal := ganttPalette()
-	for _, j := range scheduleOrder(in, s) {
+	for _, j := range ioScheduleOrder(in, s) {
 		jb := in.Jobs[j]
 		st, end := s.Start[j], s.Start[j]+jb.Processing
 		l := g.laneOf(j)
@@ -258,7 +258,7 @@ func (g *gantt) detail() {
 		if late {
 			fill, edge = ganttLate, ganttLateEdge
 		}
-		name := jobName(in, j)
+		name := ioJobName(in, j)
 		tip := fmt.Sprintf("%s: %d–%d, due %d", name, st, end, jb.Due)
 		if late {
 			tip += fmt.Sprintf(", %d late", end-jb.Due)
@@ -268,9 +268,9 @@ func (g *gantt) detail() {
 			stroke = "1.5"
 		}
 		g.p(`<g class="job"><title>%s</title><rect x="%s" y="%s" width="%s" height="%s" fill="%s" stroke="%s" stroke-width="%s"/>`,
-			esc(tip), gf(x0), gf(y), gf(math.Max(x1-x0, 0.5)), gf(h), fill, edge, stroke)
+			ganttEscape(tip), ganttNum(x0), ganttNum(y), ganttNum(math.Max(x1-x0, 0.5)), ganttNum(h), fill, edge, stroke)
 		if label := ganttLabel(name, x1-x0); label != "" {
-			g.p(`<text x="%s" y="%s" fill="#ffffff">%s</text>`, gf(x0+3), gf(y+h/2+4), esc(label))
+			g.p(`<text x="%s" y="%s" fill="#ffffff">%s</text>`, ganttNum(x0+3), ganttNum(y+h/2+4), ganttEscape(label))
 		}
 		g.p("</g>\n")
 	}
@@ -329,7 +329,7 @@ func (g *gantt) aggregate() {
 			}
 			if sh > 0 {
 				g.p(`<rect class="load" x="%s" y="%s" width="%s" height="%s" fill="%s" fill-opacity="%s"/>`+"\n",
-					gf(g.x(float64(b*bwid))), gf(y+2), gf(g.x(float64(min(e*bwid, g.span)))-g.x(float64(b*bwid))), gf(g.laneH-7),
+					ganttNum(g.x(float64(b*bwid))), ganttNum(y+2), ganttNum(g.x(float64(min(e*bwid, g.span)))-g.x(float64(b*bwid))), ganttNum(g.laneH-7),
 					pal[k%len(pal)], strconv.FormatFloat(float64(sh)/10, 'f', 1, 64))
 			}
 			b = e
@@ -337,7 +337,7 @@ func (g *gantt) aggregate() {
 		for b := 0; b < nb; b++ {
 			if c := late[l][b]; c > 0 {
 				g.p(`<rect class="late" x="%s" y="%s" width="%s" height="4" fill="%s" fill-opacity="%s"/>`+"\n",
-					gf(g.x(float64(b*bwid))), gf(y+g.laneH-5), gf(g.x(float64(min((b+1)*bwid, g.span)))-g.x(float64(b*bwid))),
+					ganttNum(g.x(float64(b*bwid))), ganttNum(y+g.laneH-5), ganttNum(g.x(float64(min((b+1)*bwid, g.span)))-g.x(float64(b*bwid))),
 					ganttLate, strconv.FormatFloat(0.3+0.7*float64(c)/float64(maxLate), 'f', 2, 64))
 			}
 		}
@@ -347,15 +347,15 @@ func (g *gantt) aggregate() {
 // axis draws the time axis with ticks at a round step.
 func (g *gantt) axis() {
 	y := g.top + float64(g.lanes)*g.laneH
-	g.p(`<line x1="%s" y1="%s" x2="%s" y2="%s" stroke="#000000"/>`+"\n", gf(g.left), gf(y), gf(g.x(float64(g.span))), gf(y))
+	g.p(`<line x1="%s" y1="%s" x2="%s" y2="%s" stroke="#000000"/>`+"\n", ganttNum(g.left), ganttNum(y), ganttNum(g.x(float64(g.span))), ganttNum(y))
 	step := ganttStep(g.span, max(2, g.opt.Width/80))
 	for t := 0; t <= g.span; t += step {
 		x := g.x(float64(t))
 		g.p(`<line x1="%s" y1="%s" x2="%s" y2="%s" stroke="#000000"/><line x1="%s" y1="%s" x2="%s" y2="%s" stroke="#dddddd"/>`+
 			`<text x="%s" y="%s" text-anchor="middle">%d</text>`+"\n",
-			gf(x), gf(y), gf(x), gf(y+5), gf(x), gf(g.top), gf(x), gf(y), gf(x), gf(y+17), t)
+			ganttNum(x), ganttNum(y), ganttNum(x), ganttNum(y+5), ganttNum(x), ganttNum(g.top), ganttNum(x), ganttNum(y), ganttNum(x), ganttNum(y+17), t)
 	}
-	g.p(`<text x="%s" y="%s" text-anchor="middle" fill="#444444">time</text>`+"\n", gf(g.left+float64(g.opt.Width)/2), gf(y+34))
+	g.p(`<text x="%s" y="%s" text-anchor="middle" fill="#444444">time</text>`+"\n", ganttNum(g.left+float64(g.opt.Width)/2), ganttNum(y+34))
 }
 
 // ganttStep is a round tick step (1, 2 or 5 times a power of ten) giving at

@@ -8,9 +8,9 @@ import (
 	"testing"
 )
 
-// svgCount parses an SVG with encoding/xml and counts elements by name and
+// ioSVGCount parses an SVG with encoding/xml and counts elements by name and
 // class attribute ("rect", "rect.late", "g.job", "text").
-func svgCount(t *testing.T, data []byte) map[string]int {
+func ioSVGCount(t *testing.T, data []byte) map[string]int {
 	t.Helper()
 	dec := xml.NewDecoder(bytes.NewReader(data))
 	count := map[string]int{}
@@ -41,7 +41,7 @@ func TestGanttDetail(t *testing.T) {
 	if err := WriteGanttSVG(&buf, in, s, GanttOptions{}); err != nil {
 		t.Fatal(err)
 	}
-	c := svgCount(t, buf.Bytes())
+	c := ioSVGCount(t, buf.Bytes())
 	if c["g.job"] != len(in.Jobs) {
 		t.Fatalf("%d job bars, want %d", c["g.job"], len(in.Jobs))
 	}
@@ -57,7 +57,7 @@ func TestGanttDetail(t *testing.T) {
 	// Most bars carry their job's name, whole or shortened.
 	labelled := 0
 	for j := range in.Jobs {
-		name := []rune(esc(jobName(in, j)))
+		name := []rune(ganttEscape(ioJobName(in, j)))
 		if strings.Contains(buf.String(), `fill="#ffffff">`+string(name[:3])) {
 			labelled++
 		}
@@ -85,7 +85,7 @@ func TestGanttAggregatesLargeSchedules(t *testing.T) {
 	if buf.Len() > 2<<20 {
 		t.Fatalf("the chart of 5,000 jobs takes %d bytes, want under 2 MB", buf.Len())
 	}
-	c := svgCount(t, buf.Bytes())
+	c := ioSVGCount(t, buf.Bytes())
 	if c["g.job"] != 0 || c["rect.load"] == 0 || c["rect.late"] == 0 || c["rect"] > 20*2*250+100 {
 		t.Fatalf("unexpected elements for an aggregated chart: %v", c)
 	}
@@ -102,7 +102,7 @@ func TestGanttAggregatesLargeSchedules(t *testing.T) {
 	if err := WriteGanttSVG(&buf, many, ioListSchedule(many), GanttOptions{}); err != nil {
 		t.Fatal(err)
 	}
-	if c := svgCount(t, buf.Bytes()); c["rect.load"] == 0 || c["rect"] > 2*2*250+100 || !strings.Contains(buf.String(), "K1 (150)") {
+	if c := ioSVGCount(t, buf.Bytes()); c["rect.load"] == 0 || c["rect"] > 2*2*250+100 || !strings.Contains(buf.String(), "K1 (150)") {
 		t.Fatalf("300 machines: %v", c)
 	}
 }
@@ -123,7 +123,7 @@ func TestGanttCapsLanes(t *testing.T) {
 	if err := WriteGanttSVG(&buf, in, ioListSchedule(in), GanttOptions{}); err != nil {
 		t.Fatal(err)
 	}
-	c := svgCount(t, buf.Bytes())
+	c := ioSVGCount(t, buf.Bytes())
 	if c["g.job"] != 0 || !strings.Contains(buf.String(), "the last 80 classes are not drawn") || strings.Contains(buf.String(), ">K121 (1)<") {
 		t.Fatalf("lane cap not applied: %v", c)
 	}

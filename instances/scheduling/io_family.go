@@ -28,7 +28,7 @@ func ScheduleOfPlan(in *Instance, p *decomp.Plan) (*Schedule, error) {
 	if !ok || s == nil {
 		return nil, fmt.Errorf("scheduling: plan detail is %T, want a *scheduling.Schedule", p.Detail)
 	}
-	if err := scheduleShape(in, s); err != nil {
+	if err := ioCheckShape(in, s); err != nil {
 		return nil, err
 	}
 	return s, nil
@@ -88,11 +88,11 @@ type ScheduleRow struct {
 
 // PlanRows lists a schedule in the order of schedule.csv.
 func PlanRows(in *Instance, s *Schedule) ([]ScheduleRow, error) {
-	if err := scheduleShape(in, s); err != nil {
+	if err := ioCheckShape(in, s); err != nil {
 		return nil, err
 	}
 	out := make([]ScheduleRow, 0, len(in.Jobs))
-	for _, j := range scheduleOrder(in, s) {
+	for _, j := range ioScheduleOrder(in, s) {
 		jb := in.Jobs[j]
 		end := s.Start[j] + jb.Processing
 		out = append(out, ScheduleRow{Job: jb.ID, Name: jb.Name, Class: in.Classes[s.Class[j]].ID, Machine: s.Machine[j] + 1,

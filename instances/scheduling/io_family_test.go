@@ -17,7 +17,7 @@ type ioTables map[string]*bytes.Buffer
 
 func (t ioTables) Create(suffix string) (io.WriteCloser, error) {
 	t[suffix] = &bytes.Buffer{}
-	return testCloser{t[suffix]}, nil
+	return ioCloser{t[suffix]}, nil
 }
 
 // ioSink collects generated files in memory.
@@ -25,11 +25,11 @@ type ioSink map[string]*bytes.Buffer
 
 func (s ioSink) Create(name string) (io.WriteCloser, error) {
 	s[name] = &bytes.Buffer{}
-	return testCloser{s[name]}, nil
+	return ioCloser{s[name]}, nil
 }
 
 // slotPrices puts price v on slots from..to-1 of class k.
-func slotPrices(in *Instance, k, from, to int, v float64) []float64 {
+func ioSlotPrices(in *Instance, k, from, to int, v float64) []float64 {
 	offsets, total := SlotRows(in.Horizons())
 	p := make([]float64, total)
 	for t := from; t < to; t++ {
@@ -39,9 +39,9 @@ func slotPrices(in *Instance, k, from, to int, v float64) []float64 {
 }
 
 func TestWritePlanFiles(t *testing.T) {
-	in := smallInstance(t)
+	in := ioSmallInstance(t)
 	_, s := ioBruteForce(t, in)
-	res := &decomp.Result{Plan: &decomp.Plan{Detail: s}, Prices: slotPrices(in, 1, 2, 6, 1.5)}
+	res := &decomp.Result{Plan: &decomp.Plan{Detail: s}, Prices: ioSlotPrices(in, 1, 2, 6, 1.5)}
 	var plan bytes.Buffer
 	tabs := ioTables{}
 	if err := WritePlanFiles(&plan, in, res, tabs); err != nil {
@@ -123,7 +123,7 @@ func TestDemoScenario(t *testing.T) {
 	}
 	s := ioListSchedule(in)
 	// Binding line priced from Wed 08:00 (hour 20) to Wed 12:00 (hour 24).
-	res := &decomp.Result{Plan: &decomp.Plan{Detail: s}, Prices: slotPrices(in, 2, 20, 24, 2.5)}
+	res := &decomp.Result{Plan: &decomp.Plan{Detail: s}, Prices: ioSlotPrices(in, 2, 20, 24, 2.5)}
 	if err := sc.Explain(&out, m, res); err != nil {
 		t.Fatal(err)
 	}

@@ -91,7 +91,7 @@ func writeMPS(w io.Writer, in *Instance, integer bool) error {
 	}
 	fmt.Fprintf(bw, "* time-indexed scheduling model (%s): %d jobs, %d machine classes, %s\n", kind, len(in.Jobs), len(in.Classes), in.Objective)
 	fmt.Fprintf(bw, "* x_j_k_s = 1 when job j (1-based) starts on class k (1-based) at time s\n")
-	fmt.Fprintf(bw, "* horizons per class: %s\n", joinInts(hs))
+	fmt.Fprintf(bw, "* horizons per class: %s\n", mpsJoinInts(hs))
 	fmt.Fprintf(bw, "NAME %s\nROWS\n N obj\n", name)
 	for j := range in.Jobs {
 		fmt.Fprintf(bw, " E job_%d\n", j+1)
@@ -174,7 +174,7 @@ func mpsColumn(j, k, s int) string {
 	return "x_" + strconv.Itoa(j+1) + "_" + strconv.Itoa(k+1) + "_" + strconv.Itoa(s)
 }
 
-func joinInts(v []int) string {
+func mpsJoinInts(v []int) string {
 	s := make([]string, len(v))
 	for i, x := range v {
 		s[i] = strconv.Itoa(x)

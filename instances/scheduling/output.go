@@ -10,8 +10,8 @@ import (
 	"pincer/instances"
 )
 
-// scheduleHeader is the header of schedule.csv.
-func scheduleHeader() []string {
+// ioScheduleHeader is the header of schedule.csv.
+func ioScheduleHeader() []string {
 	return []string{"job", "name", "class", "machine", "start", "end", "tardiness"}
 }
 
@@ -23,12 +23,12 @@ func scheduleHeader() []string {
 // bottom. s must place every job (see Instance.Evaluate); it need not be
 // feasible.
 func WriteScheduleCSV(w io.Writer, in *Instance, s *Schedule) error {
-	if err := scheduleShape(in, s); err != nil {
+	if err := ioCheckShape(in, s); err != nil {
 		return err
 	}
 	cw := csv.NewWriter(w)
-	cw.Write(scheduleHeader())
-	for _, j := range scheduleOrder(in, s) {
+	cw.Write(ioScheduleHeader())
+	for _, j := range ioScheduleOrder(in, s) {
 		jb := in.Jobs[j]
 		end := s.Start[j] + jb.Processing
 		cw.Write([]string{jb.ID, jb.Name, in.Classes[s.Class[j]].ID, strconv.Itoa(s.Machine[j] + 1),
@@ -41,9 +41,9 @@ func WriteScheduleCSV(w io.Writer, in *Instance, s *Schedule) error {
 	return nil
 }
 
-// scheduleShape checks that s has one entry per job with an existing class
+// ioCheckShape checks that s has one entry per job with an existing class
 // and machine.
-func scheduleShape(in *Instance, s *Schedule) error {
+func ioCheckShape(in *Instance, s *Schedule) error {
 	n := len(in.Jobs)
 	if s == nil || len(s.Class) != n || len(s.Machine) != n || len(s.Start) != n {
 		return fmt.Errorf("scheduling: schedule does not place all %d jobs", n)
@@ -57,8 +57,8 @@ func scheduleShape(in *Instance, s *Schedule) error {
 	return nil
 }
 
-// scheduleOrder lists the jobs by class, machine, start and job index.
-func scheduleOrder(in *Instance, s *Schedule) []int {
+// ioScheduleOrder lists the jobs by class, machine, start and job index.
+func ioScheduleOrder(in *Instance, s *Schedule) []int {
 	order := make([]int, len(in.Jobs))
 	for j := range order {
 		order[j] = j
@@ -161,16 +161,16 @@ func WriteWindowsCSV(w io.Writer, in *Instance, windows []BusyWindow) error {
 	return nil
 }
 
-// className is the class's name for people (its id when unnamed).
-func className(in *Instance, k int) string {
+// ioClassName is the class's name for people (its id when unnamed).
+func ioClassName(in *Instance, k int) string {
 	if in.Classes[k].Name != "" {
 		return in.Classes[k].Name
 	}
 	return in.Classes[k].ID
 }
 
-// jobName is the job's name for people (its id when unnamed).
-func jobName(in *Instance, j int) string {
+// ioJobName is the job's name for people (its id when unnamed).
+func ioJobName(in *Instance, j int) string {
 	if in.Jobs[j].Name != "" {
 		return in.Jobs[j].Name
 	}
@@ -181,11 +181,11 @@ func jobName(in *Instance, j int) string {
 // issue: "one more machine of class X between t1 and t2 would save about Y".
 func WindowSentence(in *Instance, win BusyWindow) string {
 	return fmt.Sprintf("one more machine of class %s between %d and %d would save about %s",
-		className(in, win.Class), win.From, win.To, instances.FormatNumber(roundTo(win.Saving, 2)))
+		ioClassName(in, win.Class), win.From, win.To, instances.FormatNumber(ioRound(win.Saving, 2)))
 }
 
-// roundTo rounds v to d decimals for people.
-func roundTo(v float64, d int) float64 {
+// ioRound rounds v to d decimals for people.
+func ioRound(v float64, d int) float64 {
 	r, _ := strconv.ParseFloat(strconv.FormatFloat(v, 'f', d, 64), 64)
 	return r
 }
@@ -196,7 +196,7 @@ func roundTo(v float64, d int) float64 {
 // (see BusiestWindows; nil for none). It says that the schedule is decision
 // support, to be checked against the shop's own rules.
 func WriteSummary(w io.Writer, in *Instance, s *Schedule, windows []BusyWindow) error {
-	if err := scheduleShape(in, s); err != nil {
+	if err := ioCheckShape(in, s); err != nil {
 		return err
 	}
 	const shown = 5
@@ -232,7 +232,7 @@ func WriteSummary(w io.Writer, in *Instance, s *Schedule, windows []BusyWindow) 
 		}
 		p(":\n")
 		for _, l := range tardy[:min(shown, len(tardy))] {
-			p("  %s: %d late (weight %d, cost %d)\n", jobName(in, l.job), l.tard, in.Jobs[l.job].Weight, l.cost)
+			p("  %s: %d late (weight %d, cost %d)\n", ioJobName(in, l.job), l.tard, in.Jobs[l.job].Weight, l.cost)
 		}
 	}
 	p("Load per class:\n")
@@ -242,7 +242,7 @@ func WriteSummary(w io.Writer, in *Instance, s *Schedule, windows []BusyWindow) 
 			util = float64(load[k]) / float64(c.Machines*makespan)
 		}
 		p("  %s: %d machine(s), %d time units of work, %.0f%% busy until the last job ends\n",
-			className(in, k), c.Machines, load[k], 100*util)
+			ioClassName(in, k), c.Machines, load[k], 100*util)
 	}
 	if len(windows) > 0 {
 		p("Where capacity is short (slot prices at the best bound):\n")

@@ -44,7 +44,7 @@ func TestBusiestWindows(t *testing.T) {
 }
 
 func TestWriteSummary(t *testing.T) {
-	in := smallInstance(t)
+	in := ioSmallInstance(t)
 	_, s := ioBruteForce(t, in)
 	var buf bytes.Buffer
 	wins := []BusyWindow{{Class: 1, From: 0, To: 8, Saving: 12.345}}

@@ -126,17 +126,17 @@ const reportMaxProblems = 20
 // release, no two jobs overlapping on a machine; it computes the objective
 // and, for a schedule that passes, confirms it with Instance.Evaluate.
 func Verify(in *Instance, s *Schedule) Report {
-	return verify(in, s, nil)
+	return verifyWith(in, s, nil)
 }
 
 // VerifyPlan is Verify for a schedule read with ReadPlanCSV; it also
 // checks the stated end (start + processing time) and tardiness (max(0,
 // end − due)) columns, naming the line of each disagreement.
 func VerifyPlan(in *Instance, pf *PlanFile) Report {
-	return verify(in, pf.Schedule, pf)
+	return verifyWith(in, pf.Schedule, pf)
 }
 
-func verify(in *Instance, s *Schedule, pf *PlanFile) Report {
+func verifyWith(in *Instance, s *Schedule, pf *PlanFile) Report {
 	var rep Report
 	more := 0
 	problem := func(format string, a ...any) {

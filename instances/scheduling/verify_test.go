@@ -10,7 +10,7 @@ import (
 	"pincer/instances"
 )
 
-func smallInstance(t *testing.T) *Instance {
+func ioSmallInstance(t *testing.T) *Instance {
 	t.Helper()
 	in, err := ReadCSVFolder(filepath.Join("testdata", "small"))
 	if err != nil {
@@ -22,7 +22,7 @@ func smallInstance(t *testing.T) *Instance {
 // Source of the expected value: exhaustive search (ioBruteForce); the
 // written schedule must read back and verify to the same value.
 func TestScheduleCSVRoundTripVerifies(t *testing.T) {
-	in := smallInstance(t)
+	in := ioSmallInstance(t)
 	want, s := ioBruteForce(t, in)
 	var buf bytes.Buffer
 	if err := WriteScheduleCSV(&buf, in, s); err != nil {
@@ -48,7 +48,7 @@ func TestScheduleCSVRoundTripVerifies(t *testing.T) {
 // Each broken plan is built by hand on testdata/small (lathe: 2 machines,
 // mill: 1; J1 lathe only, J3 mill only, J2 released at 1, J4 at 2).
 func TestVerifyFindsViolations(t *testing.T) {
-	in := smallInstance(t)
+	in := ioSmallInstance(t)
 	head := "job,name,class,machine,start,end,tardiness\n"
 	ok := "J1,,lathe,1,0,4,0\nJ2,,lathe,2,1,4,0\nJ3,,mill,1,0,5,0\nJ4,,lathe,2,4,6,2\nJ5,,mill,1,5,8,5\n"
 	for _, c := range []struct {
@@ -87,7 +87,7 @@ func TestVerifyFindsViolations(t *testing.T) {
 }
 
 func TestReadPlanCSVErrors(t *testing.T) {
-	in := smallInstance(t)
+	in := ioSmallInstance(t)
 	for _, c := range []struct {
 		name, plan     string
 		line, col, tok int
