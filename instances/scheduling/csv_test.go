@@ -148,3 +148,15 @@ func FuzzReadCSVTables(f *testing.F) {
 type ioCloser struct{ io.Writer }
 
 func (ioCloser) Close() error { return nil }
+
+// testdata/bad-eligible names a class "saw" that machines.csv lacks, on
+// line 3, field 7 (byte column 23), for command-line tests of exit code 2.
+func TestReadCSVFolderBadEligible(t *testing.T) {
+	dir := filepath.Join("testdata", "bad-eligible")
+	_, err := ReadCSVFolder(dir)
+	var pe *instances.ParseError
+	if !errors.As(err, &pe) || pe.File != filepath.Join(dir, JobsFile) || pe.Line != 3 || pe.Token != 7 || pe.Column != 23 || !strings.Contains(err.Error(), `unknown class "saw"`) {
+		t.Fatalf("got %v", err)
+	}
+	t.Log(err)
+}
