@@ -95,6 +95,19 @@ func demoClock(t int) string {
 	return fmt.Sprintf("%s %02d:00", days[d], 8+t%10)
 }
 
+// demoClockEnd names the end of working hour t−1: the close of the day
+// (18:00) rather than the next morning.
+func demoClockEnd(t int) string {
+	if t > 0 && t%10 == 0 {
+		s := demoClock(t - 1)
+		if strings.HasPrefix(s, "hour") {
+			return fmt.Sprintf("hour %d", t)
+		}
+		return s[:4] + "18:00"
+	}
+	return demoClock(t)
+}
+
 // WriteDemoIntro introduces the demo scenario (see Demo).
 func WriteDemoIntro(w io.Writer, in *Instance) error {
 	_, err := fmt.Fprintf(w, `Tidewater Print & Bind (invented) plans its week: %d jobs for two offset presses,
@@ -134,7 +147,7 @@ func WriteDemoExplanation(w io.Writer, in *Instance, s *Schedule, windows []Busy
 	}
 	for _, win := range windows {
 		p("  One more %s (hired, or an extra crew) from %s to %s would save about %.1f points.\n",
-			ioClassName(in, win.Class), demoClock(win.From), demoClock(win.To), win.Saving)
+			ioClassName(in, win.Class), demoClock(win.From), demoClockEnd(win.To), win.Saving)
 	}
 	_, err := fmt.Fprintln(w, "The plan is decision support: the shop floor checks it against its own rules before use.")
 	if err != nil {

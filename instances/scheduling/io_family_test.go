@@ -122,13 +122,13 @@ func TestDemoScenario(t *testing.T) {
 		t.Fatal(err)
 	}
 	s := ioListSchedule(in)
-	// Binding line priced from Wed 08:00 (hour 20) to Wed 12:00 (hour 24).
-	res := &decomp.Result{Plan: &decomp.Plan{Detail: s}, Prices: ioSlotPrices(in, 2, 20, 24, 2.5)}
+	// Binding line priced from Wed 08:00 (hour 20) to the close of Wed (hour 30).
+	res := &decomp.Result{Plan: &decomp.Plan{Detail: s}, Prices: ioSlotPrices(in, 2, 20, 30, 1)}
 	if err := sc.Explain(&out, m, res); err != nil {
 		t.Fatal(err)
 	}
 	text := out.String()
-	for _, want := range []string{"Tidewater Print & Bind", "One more binding line (hired, or an extra crew) from Wed 08:00 to Wed 12:00 would save about 10.0 points", "decision support"} {
+	for _, want := range []string{"Tidewater Print & Bind", "One more binding line (hired, or an extra crew) from Wed 08:00 to Wed 18:00 would save about 10.0 points", "decision support"} {
 		if !strings.Contains(text, want) {
 			t.Errorf("demo text lacks %q:\n%s", want, text)
 		}

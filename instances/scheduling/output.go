@@ -220,8 +220,12 @@ func WriteSummary(w io.Writer, in *Instance, s *Schedule, windows []BusyWindow) 
 	}
 	sort.SliceStable(tardy, func(a, b int) bool { return tardy[a].cost > tardy[b].cost })
 	p := func(format string, a ...any) { fmt.Fprintf(w, format, a...) }
+	what := "total weighted tardiness"
+	if in.Objective == WeightedCompletion {
+		what = "total weighted completion time"
+	}
 	p("Schedule for %s: %d jobs on %d machine classes, %s %d, last job ends at %d.\n",
-		in.Name, len(in.Jobs), len(in.Classes), in.Objective, total, makespan)
+		in.Name, len(in.Jobs), len(in.Classes), what, total, makespan)
 	switch {
 	case len(tardy) == 0:
 		p("Every job ends by its due date.\n")
