@@ -136,3 +136,49 @@ func TestLPRelaxationBelowOptimum(t *testing.T) {
 		t.Logf("seed %d: LP %v <= optimum %d", seed, lp, opt)
 	}
 }
+
+// A second reader of the same file: GLPK's glpsol (Debian glpk-utils)
+// must read the free MPS and find the exhaustive-search optimum too.
+func TestMPSAgainstGLPK(t *testing.T) {
+	bin, err := exec.LookPath("glpsol")
+	if err != nil {
+		t.Skip("glpsol not installed (apt-get install glpk-utils); the second MPS reader is skipped")
+	}
+	in := Generate(GenerateConfig{Jobs: 8, Machines: 2, Classes: 2, TF: 1, RDD: 0.4, MaxProcessing: 7,
+		ReleaseFactor: 0.3, EligibleShare: 0.5, Seed: 8})
+	want, _ := ioBruteForce(t, in)
+	dir := t.TempDir()
+	for _, c := range []struct {
+		file  string
+		write func(io.Writer, *Instance) error
+	}{{"mip.mps", WriteMPS}, {"lp.mps", WriteLPRelaxationMPS}} {
+		var buf bytes.Buffer
+		if err := c.write(&buf, in); err != nil {
+			t.Fatal(err)
+		}
+		path := filepath.Join(dir, c.file)
+		if err := os.WriteFile(path, buf.Bytes(), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		out, err := exec.Command(bin, "--freemps", path, "--tmlim", "20", "-o", path+".out").CombinedOutput()
+		if err != nil {
+			t.Fatalf("glpsol: %v\n%s", err, out)
+		}
+		report, err := os.ReadFile(path + ".out")
+		if err != nil {
+			t.Fatal(err)
+		}
+		m := regexp.MustCompile(`Objective:\s+obj = (\S+)`).FindSubmatch(report)
+		if m == nil || !bytes.Contains(report, []byte("OPTIMAL")) {
+			t.Fatalf("glpsol found no optimum:\n%s\n%s", out, report)
+		}
+		v, _ := strconv.ParseFloat(string(m[1]), 64)
+		if c.file == "mip.mps" && math.Abs(v-float64(want)) > 1e-6 {
+			t.Fatalf("glpsol optimum %v, brute force %d", v, want)
+		}
+		if c.file == "lp.mps" && v > float64(want)+1e-6 {
+			t.Fatalf("glpsol LP value %v above the optimum %d", v, want)
+		}
+		t.Logf("%s: glpsol %v, optimum %d", c.file, v, want)
+	}
+}
