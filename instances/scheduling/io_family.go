@@ -13,14 +13,13 @@ import (
 // abilities as plain functions, for the Family and Model methods to call:
 // PlanWriter (WritePlanFiles, PlanTableNames), Verifier (VerifyFile, in
 // verify.go), MPSExporter (WriteMPS, in mps.go), Generator
-// (GenerateRecipe), Demo (DemoScenario), the JSON plan (PlanRows), the
-// summary's resources (WindowResources) and the report's windows
-// (WindowRows).
+// (GenerateRecipe), Demo (DemoScenario), the summary's resources
+// (WindowResources) and the report's windows (WindowRows).
 
-// ScheduleOfPlan returns a plan's schedule (nil for no plan) and an error
+// ioScheduleOf returns a plan's schedule (nil for no plan) and an error
 // when the plan's Detail is not a *Schedule placing every job of in on an
 // existing machine.
-func ScheduleOfPlan(in *Instance, p *decomp.Plan) (*Schedule, error) {
+func ioScheduleOf(in *Instance, p *decomp.Plan) (*Schedule, error) {
 	if p == nil {
 		return nil, nil
 	}
@@ -44,7 +43,7 @@ func PlanTableNames() []string { return []string{"windows"} }
 // extra.Create("windows"). The prices are laid out by SlotRows over
 // in.Horizons(); a result without prices gives an empty window table.
 func WritePlanFiles(w io.Writer, in *Instance, res *decomp.Result, extra instances.Tables) error {
-	s, err := ScheduleOfPlan(in, res.Plan)
+	s, err := ioScheduleOf(in, res.Plan)
 	if err != nil {
 		return err
 	}
@@ -72,33 +71,6 @@ func WritePlanFiles(w io.Writer, in *Instance, res *decomp.Result, extra instanc
 		return err
 	}
 	return t.Close()
-}
-
-// ScheduleRow is one job of a schedule as the JSON report shows it; the
-// fields are the columns of schedule.csv.
-type ScheduleRow struct {
-	Job       string `json:"job"`
-	Name      string `json:"name,omitempty"`
-	Class     string `json:"class"`
-	Machine   int    `json:"machine"` // 1-based within the class
-	Start     int    `json:"start"`
-	End       int    `json:"end"`
-	Tardiness int    `json:"tardiness"`
-}
-
-// PlanRows lists a schedule in the order of schedule.csv.
-func PlanRows(in *Instance, s *Schedule) ([]ScheduleRow, error) {
-	if err := ioCheckShape(in, s); err != nil {
-		return nil, err
-	}
-	out := make([]ScheduleRow, 0, len(in.Jobs))
-	for _, j := range ioScheduleOrder(in, s) {
-		jb := in.Jobs[j]
-		end := s.Start[j] + jb.Processing
-		out = append(out, ScheduleRow{Job: jb.ID, Name: jb.Name, Class: in.Classes[s.Class[j]].ID, Machine: s.Machine[j] + 1,
-			Start: s.Start[j], End: end, Tardiness: max(0, end-jb.Due)})
-	}
-	return out, nil
 }
 
 // WindowRow is a busy window as the JSON report shows it.
@@ -242,7 +214,7 @@ func DemoScenario(newModel func(*Instance) (instances.Model, error), instanceOf 
 			if err != nil {
 				return err
 			}
-			s, err := ScheduleOfPlan(in, res.Plan)
+			s, err := ioScheduleOf(in, res.Plan)
 			if err != nil || s == nil {
 				return err
 			}

@@ -62,7 +62,7 @@ func TestWritePlanFiles(t *testing.T) {
 	if err != nil || len(rows) != 1 || !strings.Contains(rows[0].Text, "Five-axis mill between 2 and 6 would save about 6") {
 		t.Fatalf("window rows %+v %v", rows, err)
 	}
-	if _, err := ScheduleOfPlan(in, &decomp.Plan{Detail: "not a schedule"}); err == nil {
+	if _, err := ioScheduleOf(in, &decomp.Plan{Detail: "not a schedule"}); err == nil {
 		t.Fatal("a plan of another kind was accepted")
 	}
 	if err := WritePlanFiles(&plan, in, &decomp.Result{}, nil); err == nil {
