@@ -46,7 +46,8 @@ const (
 // Up to opt.DetailLimit jobs on at most 120 machines, every job is a bar
 // coloured by class, labelled with its name (shortened if need be) where
 // the bar is wide enough, with a tooltip giving start, end, due date and
-// tardiness; late jobs are drawn in red with a dark outline. Past that the
+// tardiness; late jobs are drawn in red with a dark outline and a small
+// triangle at their due date. Past that the
 // chart aggregates: time is cut into opt.Buckets buckets, each lane shows
 // per bucket the share of time its machine is busy (darker is busier) and
 // a red strip where late jobs end (redder is more of them). With more than
@@ -195,7 +196,7 @@ func (g *gantt) header() {
 	g.p(`<text x="10" y="20" font-size="15" font-weight="bold">%s</text>`+"\n", ganttEscape(g.opt.Title))
 	var note string
 	if g.detailed {
-		note = fmt.Sprintf("%d jobs, %d late (red, dark outline); bars are labelled where there is room", len(g.in.Jobs), g.tardy)
+		note = fmt.Sprintf("%d jobs, %d late (red; a triangle marks the due date); bars are labelled where there is room", len(g.in.Jobs), g.tardy)
 	} else {
 		lanes := "machine"
 		if g.perClass {
@@ -271,6 +272,13 @@ func (g *gantt) detail() {
 			ganttEscape(tip), ganttNum(x0), ganttNum(y), ganttNum(math.Max(x1-x0, 0.5)), ganttNum(h), fill, edge, stroke)
 		if label := ganttLabel(name, x1-x0); label != "" {
 			g.p(`<text x="%s" y="%s" fill="#ffffff">%s</text>`, ganttNum(x0+3), ganttNum(y+h/2+4), ganttEscape(label))
+		}
+		if late {
+			// The due date as a small triangle on the lane's top edge, so
+			// the eye sees how late without a line across other bars.
+			xd := g.x(float64(jb.Due))
+			g.p(`<path class="due" d="M%s %sL%s %sL%s %sZ" fill="%s"/>`,
+				ganttNum(xd-3.5), ganttNum(y-3), ganttNum(xd+3.5), ganttNum(y-3), ganttNum(xd), ganttNum(y+3), ganttLateEdge)
 		}
 		g.p("</g>\n")
 	}

@@ -128,3 +128,19 @@ func TestGanttCapsLanes(t *testing.T) {
 		t.Fatalf("lane cap not applied: %v", c)
 	}
 }
+
+// The due-date mark of a late job sits at its due date: one job, due 2,
+// ends at 4 on a 1000-pixel axis over 0..4, so the mark is at left + 500.
+func TestGanttDueMark(t *testing.T) {
+	in := &Instance{Name: "one", Classes: []Class{{ID: "M", Machines: 1}}, Jobs: []Job{{ID: "a", Processing: 4, Weight: 1, Due: 2}}}
+	var buf bytes.Buffer
+	if err := WriteGanttSVG(&buf, in, &Schedule{Class: []int{0}, Machine: []int{0}, Start: []int{0}}, GanttOptions{}); err != nil {
+		t.Fatal(err)
+	}
+	g := &gantt{in: in, s: &Schedule{Class: []int{0}, Machine: []int{0}, Start: []int{0}}, opt: GanttOptions{Width: 1000, DetailLimit: 400}}
+	g.layout()
+	want := `<path class="due" d="M` + ganttNum(g.left+500-3.5) + ` `
+	if !strings.Contains(buf.String(), want) || !strings.Contains(buf.String(), "a: 0–4, due 2, 2 late") {
+		t.Fatalf("no due mark %s or tooltip in\n%s", want, buf.String())
+	}
+}
