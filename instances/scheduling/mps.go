@@ -23,8 +23,9 @@ const (
 	MPSMaxEntries = 50_000_000
 )
 
-// MPSSize returns the numbers of columns (x variables) and matrix entries
-// (objective row included) of the time-indexed model WriteMPS writes.
+// MPSSize returns the number of columns (x variables) of the time-indexed
+// model WriteMPS writes and an upper bound on its matrix entries (objective
+// row included; zero costs are not written).
 func MPSSize(in *Instance) (columns, entries int64) {
 	hs := in.Horizons()
 	for j, jb := range in.Jobs {
