@@ -317,6 +317,15 @@ func printSummary(w io.Writer, m instances.Model, integral bool, res *decomp.Res
 			fmt.Fprintf(w, "  %-22s load %s of %s  price %s%s\n", r.Name, fmtNum(r.Load), fmtNum(r.Capacity), fmtNum(r.Price), flag)
 		}
 	}
+	if ex, ok := m.(instances.Explainer); ok {
+		lines, err := ex.Explain(res)
+		if err != nil {
+			return err
+		}
+		for _, l := range lines {
+			fmt.Fprintln(w, l)
+		}
+	}
 	fmt.Fprintln(w, caution)
 	return nil
 }

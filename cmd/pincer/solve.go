@@ -150,6 +150,13 @@ func newSolveCmd(chosen string) *cobra.Command {
 			if err := f.checkTables(m); err != nil {
 				return err
 			}
+			if a, ok := m.(instances.Artefacts); ok {
+				for _, path := range a.Outputs() {
+					if err := checkWritable("output", path); err != nil {
+						return err
+					}
+				}
+			}
 			_, err = solveModel(cmd.Context(), cmd.OutOrStdout(), cmd.ErrOrStderr(), &f, args[0], m)
 			return err
 		},
@@ -221,6 +228,11 @@ func solveModel(ctx context.Context, stdout, stderr io.Writer, f *runFlags, file
 	}
 	if f.plot != "" {
 		if err := writePlotFile(f.plot, m.Name(), res, trace, f.top); err != nil {
+			return res, &exitError{code: exitInternal, err: err}
+		}
+	}
+	if a, ok := m.(instances.Artefacts); ok {
+		if err := a.WriteArtefacts(res); err != nil {
 			return res, &exitError{code: exitInternal, err: err}
 		}
 	}
