@@ -177,13 +177,17 @@ func (s *search) replace(g, lo, hi int, seg []int) {
 // weight per unit of processing, then job number) and puts each on the
 // eligible machine where it can start first; ties go to the class the
 // job's block chose (its least priced cost), then the lowest machine.
+// Without answers (nil) every job's relaxed start is its release date.
 func (s *search) listSchedule(ans []decomp.Answer) {
 	in := s.r.in
 	n := len(in.Jobs)
 	start := make([]int, n)
 	chosen := make([]int, n)
 	for j := range n {
-		k, st, ok := subproblem.TimeIndexedStart(ans[j].Primal, s.K)
+		k, st, ok := -1, 0, false
+		if ans != nil {
+			k, st, ok = subproblem.TimeIndexedStart(ans[j].Primal, s.K)
+		}
 		if !ok {
 			k, st = -1, in.Jobs[j].Release
 		}
@@ -592,4 +596,36 @@ func (s *search) plan() *decomp.Plan {
 		}
 	}
 	return &decomp.Plan{Value: float64(val), Use: use, Detail: sch}
+}
+
+// slotValues estimates, from the current sequences, the value of one
+// more machine of class k in slot t: on each machine, a slot inside a
+// job's run is worth the summed weight of the later jobs on that machine
+// whose cost grows when they finish one slot later (tardy jobs, or every
+// job for weighted completion), since losing the slot delays them all; an
+// idle slot is worth nothing. Machines of a class are averaged. These are
+// the complementary-slackness prices of a schedule without idle time
+// (each job's own start is a locally best start at them), so they make a
+// strong starting point for the price rule.
+func (s *search) slotValues() []float64 {
+	in := s.r.in
+	lay := s.r.lay
+	v := make([]float64, lay.Rows())
+	for g, sq := range s.seq {
+		k := s.r.cls[g]
+		off, H := lay.Offsets[k], lay.Horizons[k]
+		scale := 1 / float64(in.Classes[k].Machines)
+		acc := 0.0
+		for i := len(sq) - 1; i >= 0; i-- {
+			j := sq[i]
+			c := s.C[g][i]
+			for t := c - in.Jobs[j].Processing; t < min(c, H); t++ {
+				v[off+t] += scale * acc
+			}
+			if s.cost(j, c+1) > s.cost(j, c) {
+				acc += float64(in.Jobs[j].Weight)
+			}
+		}
+	}
+	return v
 }
