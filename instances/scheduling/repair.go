@@ -491,12 +491,6 @@ func (s *search) kick() {
 	in := s.r.in
 	n := len(in.Jobs)
 	moves := 2 + s.rng.IntN(3+n/25)
-	touched := make(map[int]int)
-	mark := func(g, lo int) {
-		if v, ok := touched[g]; !ok || lo < v {
-			touched[g] = lo
-		}
-	}
 	for range moves {
 		x := s.rng.IntN(n)
 		g := s.mach[x]
@@ -513,9 +507,8 @@ func (s *search) kick() {
 				}
 				s.seq[g] = slices.Delete(s.seq[g], i, i+1)
 				s.seq[b] = slices.Insert(s.seq[b], j, x)
-				s.mach[x] = b
-				mark(g, i)
-				mark(b, j)
+				s.rebuild(g, i)
+				s.rebuild(b, j)
 				continue
 			}
 		}
@@ -536,10 +529,7 @@ func (s *search) kick() {
 			continue
 		}
 		s.seq[g][i], s.seq[g][j] = s.seq[g][j], s.seq[g][i]
-		mark(g, min(i, j))
-	}
-	for g, lo := range touched {
-		s.rebuild(g, lo)
+		s.rebuild(g, min(i, j))
 	}
 	s.val = s.total()
 	s.work += int64(moves)
