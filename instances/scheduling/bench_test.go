@@ -79,7 +79,11 @@ func BenchmarkLargeRepair(b *testing.B) {
 	if err != nil {
 		b.Fatal(err)
 	}
-	_, ans, err := decomp.Relaxed(context.Background(), p, p.Prices, nil)
+	prices := p.Prices
+	if prices == nil {
+		prices = make([]float64, len(p.Rows))
+	}
+	_, ans, err := decomp.Relaxed(context.Background(), p, prices, nil)
 	if err != nil {
 		b.Fatal(err)
 	}

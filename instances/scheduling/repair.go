@@ -378,6 +378,63 @@ func (s *search) dynasearch(g int) bool {
 // insertion moves each job of machine g to its best position within the
 // window when that lowers the cost.
 func (s *search) insertion(g int) bool {
+	if s.released(g) {
+		return s.insertionReleased(g)
+	}
+	// No release dates on this machine: its jobs run back to back from 0,
+	// so moving the job at i to j shifts the jobs between by its
+	// processing time, and the gains of all targets j of one job add up
+	// in one sweep each way (O(1) per move).
+	improved := false
+	jobs := s.r.in.Jobs
+	n := len(s.seq[g])
+	W := window(n)
+	for i := 0; i < n && !s.out(); i++ {
+		sq, C := s.seq[g], s.C[g]
+		x := sq[i]
+		px := jobs[x].Processing
+		own := s.cost(x, C[i])
+		bestD, bestJ := int64(0), -1
+		var sum int64
+		for j := i + 1; j <= min(n-1, i+W); j++ {
+			l := sq[j]
+			sum += s.cost(l, C[j]-px) - s.cost(l, C[j])
+			if d := sum + s.cost(x, C[j]) - own; d < bestD {
+				bestD, bestJ = d, j
+			}
+		}
+		sum = 0
+		for j := i - 1; j >= max(0, i-W); j-- {
+			l := sq[j]
+			sum += s.cost(l, C[j]+px) - s.cost(l, C[j])
+			if d := sum + s.cost(x, C[j]-jobs[l].Processing+px) - own; d < bestD {
+				bestD, bestJ = d, j
+			}
+		}
+		s.work += int64(min(n-1, i+W) - max(0, i-W) + 1)
+		if bestJ >= 0 {
+			seg := append([]int(nil), s.insertSeg(g, i, bestJ)...)
+			s.replace(g, min(i, bestJ), max(i, bestJ), seg)
+			s.val += bestD
+			improved = true
+		}
+	}
+	return improved
+}
+
+// released reports whether a job of machine g has a release date.
+func (s *search) released(g int) bool {
+	for _, j := range s.seq[g] {
+		if s.r.in.Jobs[j].Release > 0 {
+			return true
+		}
+	}
+	return false
+}
+
+// insertionReleased is insertion on a machine with release dates: each
+// move is re-timed (see delta).
+func (s *search) insertionReleased(g int) bool {
 	improved := false
 	n := len(s.seq[g])
 	W := window(n)
