@@ -60,11 +60,15 @@ func (r *repairer) budget(round int, final bool) int64 {
 
 // Repair implements decomp.Repairer.
 func (r *repairer) Repair(ctx context.Context, ri *decomp.RepairInput) (*decomp.Plan, error) {
-	s := r.newSearch(ri.Seed, r.budget(ri.Round, ri.Final))
+	budget := r.budget(ri.Round, ri.Final)
+	// The descent from this round's list schedule gets at most half the
+	// budget, so that the search from the best plan always gets the rest.
+	s := r.newSearch(ri.Seed, budget/2)
 	if len(ri.Answers) == len(r.in.Jobs) {
 		s.listSchedule(ri.Answers)
 		s.descend(ctx)
 	}
+	s.budget = budget
 	start := s.snapshot() // val −1: no start yet
 	if ri.Best != nil {
 		if sch, ok := ri.Best.Detail.(*Schedule); ok && s.load(sch) && (start.val < 0 || s.val <= start.val) {
@@ -74,7 +78,7 @@ func (r *repairer) Repair(ctx context.Context, ri *decomp.RepairInput) (*decomp.
 	if start.val < 0 {
 		return nil, nil // neither answers nor a plan to start from
 	}
-	s.restore(start)
+	s.restore(start, false)
 	s.iterate(ctx)
 	return s.plan(), nil
 }
@@ -88,6 +92,7 @@ type search struct {
 	C      [][]int   // C[g][i]: completion of position i
 	cum    [][]int64 // cum[g][i]: cost of positions < i
 	mach   []int     // machine of each job
+	dirty  []bool    // machine changed since its moves were last tried
 	val    int64     // objective value
 	work   int64     // work units spent
 	budget int64
@@ -100,7 +105,7 @@ type search struct {
 func (r *repairer) newSearch(seed uint64, budget int64) *search {
 	M := len(r.cls)
 	s := &search{r: r, K: len(r.in.Classes), seq: make([][]int, M), C: make([][]int, M), cum: make([][]int64, M),
-		mach: make([]int, len(r.in.Jobs)), budget: budget, rng: rand.New(rand.NewPCG(seed, seed^0x5ca1ab1e)), val: -1}
+		mach: make([]int, len(r.in.Jobs)), dirty: make([]bool, M), budget: budget, rng: rand.New(rand.NewPCG(seed, seed^0x5ca1ab1e)), val: -1}
 	return s
 }
 
@@ -131,6 +136,7 @@ func (s *search) rebuild(g, lo int) {
 		s.cum[g][i+1] = s.cum[g][i] + s.cost(j, t)
 		s.mach[j] = g
 	}
+	s.dirty[g] = true
 }
 
 func (s *search) total() int64 {
@@ -270,10 +276,13 @@ func (s *search) snapshot() state {
 	return st
 }
 
-func (s *search) restore(st state) {
+// restore goes back to st; with optimum set st is a local optimum, so
+// no machine needs its moves tried again.
+func (s *search) restore(st state, optimum bool) {
 	for g := range s.seq {
 		s.seq[g] = append(s.seq[g][:0], st.seq[g]...)
 		s.rebuild(g, 0)
+		s.dirty[g] = !optimum
 	}
 	s.val = st.val
 }
@@ -284,23 +293,29 @@ func (s *search) out() bool { return s.work >= s.budget }
 // spent: dynasearch and insertion on each machine, then moves and swaps
 // between machines.
 func (s *search) descend(ctx context.Context) {
+	active := make([]bool, len(s.seq))
 	for !s.out() && ctx.Err() == nil {
-		improved := false
+		some := false
 		for g := range s.seq {
-			for !s.out() && s.dynasearch(g) {
-				improved = true
-			}
+			active[g] = s.dirty[g]
+			some = some || active[g]
 		}
-		for g := range s.seq {
-			if !s.out() && s.insertion(g) {
-				improved = true
-			}
-		}
-		if len(s.seq) > 1 && !s.out() && s.between(ctx) {
-			improved = true
-		}
-		if !improved {
+		if !some {
 			return
+		}
+		for g := range s.seq {
+			if !active[g] {
+				continue
+			}
+			s.dirty[g] = false // set again by any move applied to g
+			for !s.out() && s.dynasearch(g) {
+			}
+			if !s.out() {
+				s.insertion(g)
+			}
+		}
+		if len(s.seq) > 1 && !s.out() {
+			s.between(ctx, active)
 		}
 	}
 }
@@ -473,10 +488,10 @@ func (s *search) insertSeg(g, i, j int) []int {
 	return s.seg
 }
 
-// between tries, for every job, moving it to another eligible machine and
+// between tries, for every job on an active machine, moving it to another eligible machine and
 // swapping it with a job there, near the position where it would start at
 // the same time, and applies the best improving one.
-func (s *search) between(ctx context.Context) bool {
+func (s *search) between(ctx context.Context, active []bool) bool {
 	const near = 4
 	in := s.r.in
 	n := len(in.Jobs)
@@ -490,6 +505,9 @@ func (s *search) between(ctx context.Context) bool {
 		}
 		x := (off + c) % n
 		a := s.mach[x]
+		if !active[a] {
+			continue
+		}
 		i := slices.Index(s.seq[a], x)
 		startX := s.C[a][i] - in.Jobs[x].Processing
 		ka := s.r.cls[a]
@@ -612,15 +630,15 @@ func (s *search) iterate(ctx context.Context) {
 			cur = s.snapshot()
 			idle++
 		default:
-			s.restore(cur)
+			s.restore(cur, true)
 			idle++
 		}
 		if idle > 200 {
-			s.restore(best)
+			s.restore(best, true)
 			cur, idle = best, 0
 		}
 	}
-	s.restore(best)
+	s.restore(best, true)
 }
 
 // plan turns the sequences into a schedule with its value and slot use.
