@@ -94,3 +94,32 @@ func TestScheduleOfRejectsForeignDetail(t *testing.T) {
 		}
 	}
 }
+
+// TestPlanCodec: the best plan survives a checkpoint's encoding.
+func TestPlanCodec(t *testing.T) {
+	in := &Instance{Name: "x", Classes: []Class{{ID: "A", Machines: 2}}, Jobs: []Job{
+		{ID: "1", Processing: 2, Weight: 1, Due: 1}, {ID: "2", Processing: 3, Weight: 2}, {ID: "3", Processing: 1, Weight: 1, Release: 2}}}
+	p, err := NewProblem(in, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := decomp.Solve(context.Background(), p, decomp.Settings{Rounds: 10, Seed: 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	data, err := p.Plans.EncodePlan(res.Plan.Detail)
+	if err != nil {
+		t.Fatal(err)
+	}
+	back, err := p.Plans.DecodePlan(data)
+	if err != nil {
+		t.Fatal(err)
+	}
+	v, err := in.Evaluate(back.(*Schedule))
+	if err != nil || float64(v) != res.Plan.Value {
+		t.Fatalf("decoded plan value %v (%v), want %v", v, err, res.Plan.Value)
+	}
+	if _, err := p.Plans.DecodePlan([]byte("not a plan")); err == nil {
+		t.Fatal("foreign data decoded")
+	}
+}

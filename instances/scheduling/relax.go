@@ -3,7 +3,6 @@ package scheduling
 import (
 	"context"
 	"fmt"
-	"math"
 
 	"pincer/decomp"
 	"pincer/subproblem"
@@ -88,38 +87,69 @@ func NewProblem(in *Instance, opt Options) (*decomp.Problem, error) {
 }
 
 // startPrices derives starting prices from a quick schedule (list
-// scheduling by release date and weight per unit of processing, then one
-// local-search descent): the slot values of search.slotValues, scaled by
-// the best of a few factors as judged by the relaxation itself. The price
-// rule starts there instead of at zero, which for time-indexed models
-// saves the thousands of rounds the subgradient would need to build up
-// the early slots' prices. It returns nil (start at zero) when zero
-// prices do at least as well.
+// scheduling by release date and weight per unit of processing, then a
+// short iterated local search of twice the first repair's budget): the
+// slot values of search.slotValues, scaled by the best factor of a small
+// search judged by the relaxation itself (1, 0.7 and 1.25 first, then one
+// step further out on the better side). The price rule starts there
+// instead of at zero, which for time-indexed models saves the thousands
+// of rounds the subgradient would need to build up the early slots'
+// prices. It returns nil (start at zero) when zero prices do at least as
+// well.
 func startPrices(p *decomp.Problem, rep *repairer) ([]float64, error) {
 	ctx := context.Background()
-	s := rep.newSearch(1, rep.moves)
+	s := rep.newSearch(1, 2*rep.moves)
 	s.listSchedule(nil)
-	s.descend(ctx)
+	s.iterate(ctx)
 	base := s.slotValues()
 	ev := decomp.Pool{Workers: 1}
-	best, bestL := []float64(nil), math.Inf(-1)
-	if L, _, err := decomp.Relaxed(ctx, p, make([]float64, len(base)), ev); err == nil {
-		bestL = L
-	} else {
-		return nil, fmt.Errorf("scheduling: starting prices: %w", err)
-	}
-	for _, theta := range []float64{0.8, 1, 1.2} {
+	value := func(theta float64) ([]float64, float64, error) {
 		pr := make([]float64, len(base))
 		for i, x := range base {
 			pr[i] = theta * x
 		}
 		L, _, err := decomp.Relaxed(ctx, p, pr, ev)
 		if err != nil {
-			return nil, fmt.Errorf("scheduling: starting prices: %w", err)
+			return nil, 0, fmt.Errorf("scheduling: starting prices: %w", err)
 		}
-		if L > bestL {
-			best, bestL = pr, L
+		return pr, L, nil
+	}
+	best, bestL, err := value(0)
+	if err != nil {
+		return nil, err
+	}
+	best = nil
+	try := func(theta float64) (bool, error) {
+		pr, L, err := value(theta)
+		if err != nil || L <= bestL {
+			return false, err
 		}
+		best, bestL = pr, L
+		return true, nil
+	}
+	if _, err := try(1); err != nil {
+		return nil, err
+	}
+	low, err := try(0.7)
+	if err != nil {
+		return nil, err
+	}
+	high, err := try(1.25)
+	if err != nil {
+		return nil, err
+	}
+	switch {
+	case high:
+		_, err = try(1.6)
+	case low:
+		_, err = try(0.5)
+	default:
+		if _, err = try(0.85); err == nil {
+			_, err = try(1.1)
+		}
+	}
+	if err != nil {
+		return nil, err
 	}
 	return best, nil
 }

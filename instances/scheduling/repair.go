@@ -51,9 +51,9 @@ func newRepairer(in *Instance, lay *subproblem.SlotLayout, moves int) *repairer 
 
 // budget is the work allowed to the repair of round.
 func (r *repairer) budget(round int, final bool) int64 {
-	g := min(int64(1+round/10), 30)
+	g := min(int64(1+round/10), 10)
 	if final {
-		g = 30
+		g = 10
 	}
 	return r.moves * g
 }
