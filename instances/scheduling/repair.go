@@ -16,9 +16,9 @@ import (
 // random kicks) that also continues from the best plan so far.
 //
 // Its effort is counted in work units (one job position evaluated by a
-// move), never by the clock: moves units on round 1, growing linearly with
-// the round to 30 times that, so that runs are reproducible and later
-// rounds, whose plans are hard to improve, search longer. It reads the
+// move), never by the clock: moves units on round 1, growing with the
+// round (see budget), so that runs are reproducible and later rounds,
+// whose plans are hard to improve, search longer. It reads the
 // instance only, so it shares no mutable state with the blocks; every call
 // builds its own search state.
 type repairer struct {
@@ -49,13 +49,16 @@ func newRepairer(in *Instance, lay *subproblem.SlotLayout, moves int) *repairer 
 	return r
 }
 
-// budget is the work allowed to the repair of round.
+// budget is the work allowed to the repair of round: the first budget,
+// growing by one share every ten rounds up to ten times it, but never
+// past 30 million units (about half a second) beyond the first, so that on
+// large instances a repair does not hold up the rounds that merge it.
 func (r *repairer) budget(round int, final bool) int64 {
-	g := min(int64(1+round/10), 10)
+	limit := max(r.moves, min(10*r.moves, 30_000_000))
 	if final {
-		g = 10
+		return limit
 	}
-	return r.moves * g
+	return min(r.moves*int64(1+round/10), limit)
 }
 
 // Repair implements decomp.Repairer.
