@@ -51,10 +51,10 @@ func newRepairer(in *Instance, lay *subproblem.SlotLayout, moves int) *repairer 
 
 // budget is the work allowed to the repair of round: the first budget,
 // growing by one share every ten rounds up to ten times it, but never
-// past 30 million units (about half a second) beyond the first, so that on
+// past 100 million units (a second or two) beyond the first, so that on
 // large instances a repair does not hold up the rounds that merge it.
 func (r *repairer) budget(round int, final bool) int64 {
-	limit := max(r.moves, min(10*r.moves, 30_000_000))
+	limit := max(r.moves, min(10*r.moves, 100_000_000))
 	if final {
 		return limit
 	}
