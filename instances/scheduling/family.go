@@ -94,7 +94,16 @@ func (m *Model) Size() string {
 	for _, c := range m.In.Classes {
 		machines += c.Machines
 	}
-	return fmt.Sprintf("%d jobs on %d machines in %d classes, %s", len(m.In.Jobs), machines, len(m.In.Classes), m.In.Objective)
+	plural := func(n int, word string) string {
+		if n == 1 {
+			return fmt.Sprintf("%d %s", n, word)
+		}
+		if word == "class" {
+			return fmt.Sprintf("%d classes", n)
+		}
+		return fmt.Sprintf("%d %ss", n, word)
+	}
+	return fmt.Sprintf("%s on %s in %s, %s", plural(len(m.In.Jobs), "job"), plural(machines, "machine"), plural(len(m.In.Classes), "class"), m.In.Objective)
 }
 
 // Sense is always Minimise.
