@@ -3,6 +3,7 @@ package scheduling
 import (
 	"context"
 	"fmt"
+	"math"
 
 	"pincer/decomp"
 	"pincer/subproblem"
@@ -90,10 +91,12 @@ func NewProblem(in *Instance, opt Options) (*decomp.Problem, error) {
 // scheduling by release date and weight per unit of processing, then a
 // short iterated local search of twice the first repair's budget): the
 // slot values of search.slotValues, scaled by the best factor of a small
-// search judged by the relaxation itself (1, 0.7 and 1.25 first, then one
-// step further out on the better side). The price rule starts there
-// instead of at zero, which for time-indexed models saves the thousands
-// of rounds the subgradient would need to build up the early slots'
+// search judged by the relaxation itself. Per-class values are tried at
+// 1, 0.7 and 1.25, then one step further out on the better side; with
+// several classes the pooled values are also tried, from 1 down by
+// factors of about 2.5 until the bound falls again. The price rule starts
+// there instead of at zero, which for time-indexed models saves the
+// thousands of rounds the subgradient would need to build up the slots'
 // prices. It returns nil (start at zero) when zero prices do at least as
 // well.
 func startPrices(p *decomp.Problem, rep *repairer) ([]float64, error) {
@@ -101,55 +104,67 @@ func startPrices(p *decomp.Problem, rep *repairer) ([]float64, error) {
 	s := rep.newSearch(1, 2*rep.moves)
 	s.listSchedule(nil)
 	s.iterate(ctx)
-	base := s.slotValues()
 	ev := decomp.Pool{Workers: 1}
-	value := func(theta float64) ([]float64, float64, error) {
+	zero, _, err := decomp.Relaxed(ctx, p, make([]float64, len(p.Rows)), ev)
+	if err != nil {
+		return nil, fmt.Errorf("scheduling: starting prices: %w", err)
+	}
+	best, bestL := []float64(nil), zero
+	// try evaluates theta·base and keeps it when it beats the best so
+	// far; it returns the bound.
+	try := func(base []float64, theta float64) (float64, error) {
 		pr := make([]float64, len(base))
 		for i, x := range base {
 			pr[i] = theta * x
 		}
 		L, _, err := decomp.Relaxed(ctx, p, pr, ev)
 		if err != nil {
-			return nil, 0, fmt.Errorf("scheduling: starting prices: %w", err)
+			return 0, fmt.Errorf("scheduling: starting prices: %w", err)
 		}
-		return pr, L, nil
+		if L > bestL {
+			best, bestL = pr, L
+		}
+		return L, nil
 	}
-	best, bestL, err := value(0)
+	base := s.slotValues(false)
+	at1, err := try(base, 1)
 	if err != nil {
 		return nil, err
 	}
-	best = nil
-	try := func(theta float64) (bool, error) {
-		pr, L, err := value(theta)
-		if err != nil || L <= bestL {
-			return false, err
-		}
-		best, bestL = pr, L
-		return true, nil
-	}
-	if _, err := try(1); err != nil {
-		return nil, err
-	}
-	low, err := try(0.7)
+	low, err := try(base, 0.7)
 	if err != nil {
 		return nil, err
 	}
-	high, err := try(1.25)
+	high, err := try(base, 1.25)
 	if err != nil {
 		return nil, err
 	}
 	switch {
-	case high:
-		_, err = try(1.6)
-	case low:
-		_, err = try(0.5)
+	case high > at1 && high >= low:
+		_, err = try(base, 1.6)
+	case low > at1:
+		_, err = try(base, 0.5)
 	default:
-		if _, err = try(0.85); err == nil {
-			_, err = try(1.1)
+		if _, err = try(base, 0.85); err == nil {
+			_, err = try(base, 1.1)
 		}
 	}
 	if err != nil {
 		return nil, err
+	}
+	if len(rep.in.Classes) > 1 {
+		pooled := s.slotValues(true)
+		prev := math.Inf(-1)
+		for _, theta := range []float64{1, 0.4, 0.16, 0.064, 0.025, 0.01} {
+			L, err := try(pooled, theta)
+			if err != nil {
+				return nil, err
+			}
+			if L < prev && prev > zero {
+				break // past the peak
+			}
+			prev = L
+		}
 	}
 	return best, nil
 }

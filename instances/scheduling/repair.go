@@ -671,14 +671,24 @@ func (s *search) plan() *decomp.Plan {
 // job's run is worth the summed weight of the later jobs on that machine
 // whose cost grows when they finish one slot later (tardy jobs, or every
 // job for weighted completion), since losing the slot delays them all; an
-// idle slot is worth nothing. Machines of a class are averaged. These are
-// the complementary-slackness prices of a schedule without idle time
-// (each job's own start is a locally best start at them), so they make a
-// strong starting point for the price rule.
-func (s *search) slotValues() []float64 {
+// idle slot is worth nothing. These are the complementary-slackness prices
+// of a schedule without idle time (each job's own start is a locally best
+// start at them), so they make a strong starting point for the price
+// rule. With pooled unset the machines of each class are averaged; with
+// pooled set all machines are, and every class gets the same price in a
+// slot, which keeps jobs that may run on several classes from fleeing to
+// the class whose quick schedule happened to be lighter.
+func (s *search) slotValues(pooled bool) []float64 {
 	in := s.r.in
 	lay := s.r.lay
 	v := make([]float64, lay.Rows())
+	total := 0
+	maxH := 0
+	for k, c := range in.Classes {
+		total += c.Machines
+		maxH = max(maxH, lay.Horizons[k])
+	}
+	shared := make([]float64, maxH)
 	for g, sq := range s.seq {
 		k := s.r.cls[g]
 		off, H := lay.Offsets[k], lay.Horizons[k]
@@ -688,11 +698,20 @@ func (s *search) slotValues() []float64 {
 			j := sq[i]
 			c := s.C[g][i]
 			for t := c - in.Jobs[j].Processing; t < min(c, H); t++ {
-				v[off+t] += scale * acc
+				if pooled {
+					shared[t] += acc / float64(total)
+				} else {
+					v[off+t] += scale * acc
+				}
 			}
 			if s.cost(j, c+1) > s.cost(j, c) {
 				acc += float64(in.Jobs[j].Weight)
 			}
+		}
+	}
+	if pooled {
+		for k := range in.Classes {
+			copy(v[lay.Offsets[k]:lay.Offsets[k]+lay.Horizons[k]], shared)
 		}
 	}
 	return v
