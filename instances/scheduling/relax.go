@@ -104,6 +104,8 @@ func startPrices(p *decomp.Problem, rep *repairer) ([]float64, error) {
 	s := rep.newSearch(1, 2*rep.moves)
 	s.listSchedule(nil)
 	s.iterate(ctx)
+	quick := s.snapshot()
+	rep.quick = &quick
 	ev := decomp.Pool{Workers: 1}
 	zero, _, err := decomp.Relaxed(ctx, p, make([]float64, len(p.Rows)), ev)
 	if err != nil {

@@ -29,6 +29,10 @@ type repairer struct {
 	// class; first[k] is class k's first machine.
 	cls, first []int
 	elig       []bool // elig[j*K+k]: job j may run on class k
+	// quick is the schedule that the starting prices came from (set once
+	// by NewProblem, read-only afterwards); the first repairs start from
+	// it too when it beats this round's list schedule.
+	quick *state
 }
 
 func newRepairer(in *Instance, lay *subproblem.SlotLayout, moves int) *repairer {
@@ -73,6 +77,10 @@ func (r *repairer) Repair(ctx context.Context, ri *decomp.RepairInput) (*decomp.
 	}
 	s.budget = budget
 	start := s.snapshot() // val −1: no start yet
+	if r.quick != nil && (start.val < 0 || r.quick.val < start.val) {
+		s.restore(*r.quick, false)
+		start = s.snapshot()
+	}
 	if ri.Best != nil {
 		if sch, ok := ri.Best.Detail.(*Schedule); ok && s.load(sch) && (start.val < 0 || s.val <= start.val) {
 			start = s.snapshot()
