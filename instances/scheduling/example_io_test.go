@@ -48,5 +48,5 @@ func ExampleBusiestWindows() {
 		fmt.Println(scheduling.WindowSentence(in, w))
 	}
 	// Output:
-	// one more machine of class offset press between 2 and 5 would save about 4
+	// one more machine of class offset press between 2 and 5 would save up to about 4
 }

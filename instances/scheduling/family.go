@@ -26,6 +26,7 @@ func (Family) Name() string { return "scheduling" }
 func (Family) Formats() []instances.Format {
 	return []instances.Format{
 		{Name: "wt-orlib", About: "single-machine weighted tardiness, OR-Library wt40/wt50/wt100 files (125 instances each; --index, --machines)"},
+		{Name: "jobs-csv", About: "shared-machine scheduling, a schedulers' folder (jobs.csv, machines.csv)", Folder: true},
 	}
 }
 
@@ -44,6 +45,7 @@ func (f Family) Options() []instances.Option {
 			Kind: instances.String, Default: WeightedTardiness.String(), Allowed: []string{WeightedTardiness.String(), WeightedCompletion.String()}},
 		{Name: "relax", Usage: "which rows to price: slots (at most m_k jobs of class k in process in each time slot)",
 			Kind: instances.String, Default: "slots", Allowed: f.Relaxations()},
+		{Name: "gantt", Usage: "write a Gantt chart of the best schedule as SVG to this file", Kind: instances.String, Default: ""},
 	}
 }
 
@@ -54,6 +56,14 @@ func (Family) Load(format, path string, v instances.Values) (instances.Model, er
 	switch format {
 	case "wt-orlib":
 		in, err = ReadORLibFile(path, v.Int("index"), max(1, v.Int("machines")))
+	case "jobs-csv":
+		if k := v.Int("index"); k > 1 {
+			return nil, fmt.Errorf("--index %d: a jobs folder holds one instance; --index picks an instance of an OR-Library file only", k)
+		}
+		if k := v.Int("machines"); k > 1 {
+			return nil, fmt.Errorf("--machines %d: a jobs folder names its machines in machines.csv; --machines applies to OR-Library files only", k)
+		}
+		in, err = ReadCSVFolder(path)
 	default:
 		return nil, fmt.Errorf("scheduling: unknown format %q", format)
 	}
@@ -68,7 +78,12 @@ func (Family) Load(format, path string, v instances.Values) (instances.Model, er
 	default:
 		return nil, fmt.Errorf("scheduling: --objective %q: want %s or %s", o, WeightedTardiness, WeightedCompletion)
 	}
-	return NewModel(in, Options{})
+	m, err := NewModel(in, Options{})
+	if err != nil {
+		return nil, err
+	}
+	m.Gantt = v.String("gantt")
+	return m, nil
 }
 
 // NewModel validates in and keeps the options for the engine problem.
@@ -83,6 +98,9 @@ func NewModel(in *Instance, opt Options) (*Model, error) {
 type Model struct {
 	In  *Instance
 	Opt Options
+	// Gantt, when not empty, is the file the Gantt chart of the best
+	// schedule is written to after a run.
+	Gantt string
 }
 
 // Name is the instance name.

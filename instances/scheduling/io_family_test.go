@@ -59,7 +59,7 @@ func TestWritePlanFiles(t *testing.T) {
 		t.Fatalf("resources %+v %v", rs, err)
 	}
 	rows, err := WindowRows(in, res.Prices, 5)
-	if err != nil || len(rows) != 1 || !strings.Contains(rows[0].Text, "Five-axis mill between 2 and 6 would save about 6") {
+	if err != nil || len(rows) != 1 || !strings.Contains(rows[0].Text, "Five-axis mill between 2 and 6 would save up to about 6") {
 		t.Fatalf("window rows %+v %v", rows, err)
 	}
 	if _, err := ioScheduleOf(in, &decomp.Plan{Detail: "not a schedule"}); err == nil {
@@ -128,7 +128,7 @@ func TestDemoScenario(t *testing.T) {
 		t.Fatal(err)
 	}
 	text := out.String()
-	for _, want := range []string{"Tidewater Print & Bind", "One more binding line (hired, or an extra crew) from Wed 08:00 to Wed 18:00 would save about 10.0 points", "decision support"} {
+	for _, want := range []string{"Tidewater Print & Bind", "One more binding line (hired, or an extra crew) from Wed 08:00 to Wed 18:00 would save up to about 10.0 points", "decision support"} {
 		if !strings.Contains(text, want) {
 			t.Errorf("demo text lacks %q:\n%s", want, text)
 		}

@@ -178,10 +178,22 @@ func ioJobName(in *Instance, j int) string {
 }
 
 // WindowSentence says what a busy window is worth, in the words of the
-// issue: "one more machine of class X between t1 and t2 would save about Y".
+// issue: "one more machine of class X between t1 and t2 would save up to about Y".
 func WindowSentence(in *Instance, win BusyWindow) string {
-	return fmt.Sprintf("one more machine of class %s between %d and %d would save about %s",
+	return fmt.Sprintf("one more machine of class %s between %d and %d would save up to about %s",
 		ioClassName(in, win.Class), win.From, win.To, instances.FormatNumber(ioRound(win.Saving, 2)))
+}
+
+// CappedWindowSentence is WindowSentence for a plan of value planValue: a
+// summed price beyond the plan's value (which no extra machine can save
+// more than) is a first-order estimate stretched past its range, and the
+// sentence says so instead of promising it.
+func CappedWindowSentence(in *Instance, win BusyWindow, planValue float64) string {
+	if win.Saving <= planValue {
+		return WindowSentence(in, win)
+	}
+	return fmt.Sprintf("one more machine of class %s between %d and %d could save up to the plan's whole %s (the window's summed slot prices, %s, overstate a change this large)",
+		ioClassName(in, win.Class), win.From, win.To, instances.FormatNumber(planValue), instances.FormatNumber(ioRound(win.Saving, 2)))
 }
 
 // ioRound rounds v to d decimals for people.

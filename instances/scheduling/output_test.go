@@ -31,7 +31,7 @@ func TestBusiestWindows(t *testing.T) {
 	if top, _ := BusiestWindows(in, horizons, prices, 1); len(top) != 1 || top[0] != want[0] {
 		t.Fatalf("limit 1: %+v", top)
 	}
-	if s := WindowSentence(in, got[0]); s != "one more machine of class presses between 1 and 3 would save about 5" {
+	if s := WindowSentence(in, got[0]); s != "one more machine of class presses between 1 and 3 would save up to about 5" {
 		t.Fatalf("sentence %q", s)
 	}
 	if _, err := BusiestWindows(in, horizons, prices[:3], 0); err == nil {
@@ -53,7 +53,7 @@ func TestWriteSummary(t *testing.T) {
 	}
 	text := buf.String()
 	for _, want := range []string{"5 jobs on 2 machine classes", "CNC lathes: 2 machine(s)",
-		"one more machine of class Five-axis mill between 0 and 8 would save about 12.35", "decision support"} {
+		"one more machine of class Five-axis mill between 0 and 8 would save up to about 12.35", "decision support"} {
 		if !strings.Contains(text, want) {
 			t.Errorf("summary lacks %q:\n%s", want, text)
 		}
