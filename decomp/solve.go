@@ -252,6 +252,11 @@ type runner struct {
 	cancelPending context.CancelFunc
 	seen          []float64 // this round's prices, for the observer
 	evaluated     bool      // answers hold a round of this call
+	// node is set by SolveNode: the cutoff (the plan limit) is the step's
+	// target while there is no plan. With keep, the answers at the best
+	// bound are kept in best.
+	node, keep bool
+	best       []Answer
 }
 
 // begin sets up the state: fresh, or restored from st.
@@ -398,6 +403,9 @@ func (r *runner) round(ctx, parent context.Context) error {
 		st.Bound, st.HasBound = value, true
 		copy(st.BestPrices, st.Prices)
 		improved = true
+		if r.keep {
+			r.keepBest()
+		}
 	}
 	planImproved := false
 	if st.Round == 1 || st.Round%s.RepairEvery == 0 {
@@ -561,9 +569,26 @@ func (r *runner) project() float64 {
 	return math.Sqrt(norm2)
 }
 
+// keepBest copies this round's answers as the answers at the best bound.
+func (r *runner) keepBest() {
+	if len(r.best) != len(r.answers) {
+		r.best = make([]Answer, len(r.answers))
+	}
+	for k, a := range r.answers {
+		b := &r.best[k]
+		b.Value, b.Cost = a.Value, a.Cost
+		b.Use = append(b.Use[:0], a.Use...)
+		b.Primal = append(b.Primal[:0], a.Primal...)
+	}
+}
+
 func (r *runner) target() float64 {
 	if r.st.Plan != nil {
 		return r.st.Plan.Value
+	}
+	if r.node && r.p.HasWorstPlanValue {
+		// A node aims at the value it must beat.
+		return r.p.WorstPlanValue
 	}
 	est := 0.05*math.Abs(r.st.Bound) + 1
 	if r.p.Sense == Maximise {
