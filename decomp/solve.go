@@ -295,6 +295,15 @@ func (r *runner) begin(st *State) error {
 	} else if st.Method != nil {
 		return errors.New("decomp: the state holds a price rule's state but the method cannot restore it")
 	}
+	if st.Repair != nil {
+		sr, ok := p.Repair.(StatefulRepairer)
+		if !ok {
+			return errors.New("decomp: the state holds a repairer's state but the problem's repairer cannot restore it")
+		}
+		if err := sr.RestoreRepairState(st.Repair); err != nil {
+			return fmt.Errorf("decomp: restoring the repairer: %w", err)
+		}
+	}
 	r.st = st
 	return nil
 }
@@ -362,6 +371,13 @@ func (r *runner) checkpoint() error {
 			return fmt.Errorf("decomp: saving the price rule: %w", err)
 		}
 		r.st.Method = b
+	}
+	if sr, ok := r.p.Repair.(StatefulRepairer); ok {
+		b, err := sr.RepairState()
+		if err != nil {
+			return fmt.Errorf("decomp: saving the repairer's state: %w", err)
+		}
+		r.st.Repair = b
 	}
 	r.st.Elapsed = r.elapsed()
 	if err := r.s.Checkpoint(r.st); err != nil {

@@ -36,7 +36,9 @@ type State struct {
 	HasPending   bool
 
 	History []RoundRecord
-	Method  []byte        // the StatefulMethod's own state, or nil
+	Method  []byte // the StatefulMethod's own state, or nil
+	// Repair is the StatefulRepairer's own state, or nil.
+	Repair  []byte
 	Elapsed time.Duration // run time before this call (set at checkpoints)
 
 	// elapsed0 is Elapsed when the call began.
@@ -51,6 +53,10 @@ func (s *State) clone() *State {
 	c.Method = append([]byte(nil), s.Method...)
 	if s.Method == nil {
 		c.Method = nil
+	}
+	c.Repair = append([]byte(nil), s.Repair...)
+	if s.Repair == nil {
+		c.Repair = nil
 	}
 	c.elapsed0 = s.Elapsed
 	return &c
@@ -89,16 +95,17 @@ func (c *Checkpoint) Match(instanceHash, settings string) error {
 	return nil
 }
 
-// Checkpoint encoding, version 1:
+// Checkpoint encoding, version 2 (version 1 had no repair state; it is
+// refused, since resuming it could not repair as the uninterrupted run):
 //
 //	magic   8 bytes  "PINCRUN\x00"
-//	version uint16   little endian, 1
+//	version uint16   little endian, 2
 //	length  uint64   little endian, bytes of payload
 //	payload          gob of the checkpoint record (plans' Detail through the PlanCodec)
 //	crc     uint32   little endian, CRC-32 (IEEE) of payload
 const (
 	checkpointMagic   = "PINCRUN\x00"
-	checkpointVersion = 1
+	checkpointVersion = 2
 	checkpointHeader  = len(checkpointMagic) + 2 + 8
 	maxCheckpoint     = 1 << 34
 )
@@ -127,7 +134,7 @@ type checkpointRecord struct {
 	PendingRound           int
 	HasPending             bool
 	History                []RoundRecord
-	Method                 []byte
+	Method, Repair         []byte
 	Elapsed                time.Duration
 }
 
@@ -178,7 +185,7 @@ func EncodeCheckpoint(c *Checkpoint, codec PlanCodec) ([]byte, error) {
 		Round: st.Round, Idle: st.Idle, Status: int8(st.Status), Reason: st.Reason,
 		Prices: st.Prices, BestPrices: st.BestPrices, Bound: st.Bound, HasBound: st.HasBound,
 		PlanProved: st.PlanProved, PendingRound: st.PendingRound, HasPending: st.HasPending,
-		History: st.History, Method: st.Method, Elapsed: st.Elapsed,
+		History: st.History, Method: st.Method, Repair: st.Repair, Elapsed: st.Elapsed,
 	}
 	var err error
 	if rec.Plan, err = encodePlan(st.Plan, codec); err != nil {
@@ -207,6 +214,9 @@ func DecodeCheckpoint(data []byte, codec PlanCodec) (c *Checkpoint, err error) {
 		return nil, fmt.Errorf("%w: no checkpoint header", ErrCheckpoint)
 	}
 	if v := binary.LittleEndian.Uint16(data[len(checkpointMagic):]); v != checkpointVersion {
+		if v < checkpointVersion {
+			return nil, fmt.Errorf("%w: version %d was written by an older build without the repairer's state, so the run could not continue exactly; this build reads version %d (start the run afresh)", ErrCheckpoint, v, checkpointVersion)
+		}
 		return nil, fmt.Errorf("%w: version %d, this build reads version %d", ErrCheckpoint, v, checkpointVersion)
 	}
 	n := binary.LittleEndian.Uint64(data[len(checkpointMagic)+2:])
@@ -234,7 +244,7 @@ func DecodeCheckpoint(data []byte, codec PlanCodec) (c *Checkpoint, err error) {
 		Round: rec.Round, Idle: rec.Idle, Status: Status(rec.Status), Reason: rec.Reason,
 		Prices: rec.Prices, BestPrices: rec.BestPrices, Bound: rec.Bound, HasBound: rec.HasBound,
 		PlanProved: rec.PlanProved, PendingRound: rec.PendingRound, HasPending: rec.HasPending,
-		History: rec.History, Method: rec.Method, Elapsed: rec.Elapsed,
+		History: rec.History, Method: rec.Method, Repair: rec.Repair, Elapsed: rec.Elapsed,
 	}
 	if st.Prices == nil {
 		st.Prices, st.BestPrices = []float64{}, []float64{}

@@ -509,15 +509,9 @@ func (r *repairer) evaluate(open []bool) (float64, error) {
 func (r *repairer) allocate(open []bool) (*transport.Solution, error) {
 	md := r.md
 	if r.tp == nil {
-		p := &transport.Problem{Supply: make([]float64, len(md.sites)), Demand: make([]float64, len(md.in.Customers)), Cost: r.unit}
-		for j, c := range md.in.Customers {
-			p.Demand[j] = c.Demand
+		if err := r.newSolver(); err != nil {
+			return nil, err
 		}
-		tp, err := transport.NewSolver(p)
-		if err != nil {
-			return nil, fmt.Errorf("cflp: allocation: %w", err)
-		}
-		r.tp = tp
 	}
 	for i, o := range open {
 		s := 0.0
@@ -539,6 +533,21 @@ func (r *repairer) allocate(open []bool) (*transport.Solution, error) {
 		return nil, fmt.Errorf("cflp: allocation: %w", err)
 	}
 	return sol, nil
+}
+
+// newSolver sets up the warm transport solver with every supply zero.
+func (r *repairer) newSolver() error {
+	md := r.md
+	p := &transport.Problem{Supply: make([]float64, len(md.sites)), Demand: make([]float64, len(md.in.Customers)), Cost: r.unit}
+	for j, c := range md.in.Customers {
+		p.Demand[j] = c.Demand
+	}
+	tp, err := transport.NewSolver(p)
+	if err != nil {
+		return fmt.Errorf("cflp: allocation: %w", err)
+	}
+	r.tp = tp
+	return nil
 }
 
 // solution builds the plan of an open set.
