@@ -652,7 +652,22 @@ func (r *runner) launchRepair(ctx context.Context, round int) {
 	}
 	in := r.repairInput(round, false, true)
 	ch := make(chan repairOutcome, 1)
-	rctx, cancel := context.WithCancel(ctx)
+	var rctx context.Context
+	var cancel context.CancelFunc
+	if r.s.Checkpoint == nil {
+		rctx, cancel = context.WithCancel(ctx)
+	} else {
+		// With checkpoints an interruption lets the repair in flight
+		// finish (its effort is bounded by moves), so that the last
+		// checkpoint holds the repair the uninterrupted run would have
+		// merged; a time limit still cuts it, and dropRepair cancels it.
+		detached := context.WithoutCancel(ctx)
+		if dl, ok := ctx.Deadline(); ok {
+			rctx, cancel = context.WithDeadline(detached, dl)
+		} else {
+			rctx, cancel = context.WithCancel(detached)
+		}
+	}
 	work := func() {
 		plan, err := r.p.Repair.Repair(rctx, in)
 		ch <- repairOutcome{round: round, plan: plan, err: err, cancelled: rctx.Err() != nil}
