@@ -34,9 +34,12 @@ type NodeResult struct {
 	Answers  []Answer  // block answers of the last round
 	// BestAnswers are the block answers at Prices (with KeepBest).
 	BestAnswers []Answer
-	CutOff      bool // the bound proved the node cannot beat Cutoff
-	Infeasible  bool // a block has no point under the fixings
-	Rounds      int
+	// CutOff reports that the bound proved the node cannot beat Cutoff,
+	// or holds no feasible plan (the bound passed the problem's
+	// WorstPlanValue).
+	CutOff     bool
+	Infeasible bool // a block has no point under the fixings
+	Rounds     int
 }
 
 // SolveNode runs a short dual ascent for a search node: warm prices, the
@@ -54,12 +57,15 @@ func SolveNode(ctx context.Context, p *Problem, ns NodeSettings) (*NodeResult, e
 	if ns.Prices != nil {
 		q.Prices = ns.Prices
 	}
-	q.WorstPlanValue, q.HasWorstPlanValue = ns.Cutoff, ns.HasCutoff
+	if ns.HasCutoff && (!q.HasWorstPlanValue || p.Sense.Better(ns.Cutoff, q.WorstPlanValue)) {
+		// The cutoff is the plan limit of the node (the tighter of the two).
+		q.WorstPlanValue, q.HasWorstPlanValue = ns.Cutoff, true
+	}
 	rounds := ns.Rounds
 	if rounds <= 0 {
 		rounds = 50
 	}
-	run := &runner{p: &q, s: withDefaults(Settings{Rounds: rounds, Gap: -1, StallRounds: 1 << 30, Evaluator: ns.Evaluator, Method: ns.Method}), start: time.Now(), node: true, keep: ns.KeepBest}
+	run := &runner{p: &q, s: withDefaults(Settings{Rounds: rounds, Gap: -1, StallRounds: 1 << 30, Evaluator: ns.Evaluator, Method: ns.Method}), start: time.Now(), cutoff: ns.Cutoff, hasCutoff: ns.HasCutoff, keep: ns.KeepBest}
 	if err := run.begin(nil); err != nil {
 		return nil, err
 	}

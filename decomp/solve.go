@@ -252,11 +252,12 @@ type runner struct {
 	cancelPending context.CancelFunc
 	seen          []float64 // this round's prices, for the observer
 	evaluated     bool      // answers hold a round of this call
-	// node is set by SolveNode: the cutoff (the plan limit) is the step's
-	// target while there is no plan. With keep, the answers at the best
-	// bound are kept in best.
-	node, keep bool
-	best       []Answer
+	// Set by SolveNode: without a plan the steps aim at cutoff (when
+	// hasCutoff); with keep, the answers at the best bound are kept in
+	// best.
+	cutoff          float64
+	hasCutoff, keep bool
+	best            []Answer
 }
 
 // begin sets up the state: fresh, or restored from st.
@@ -602,9 +603,9 @@ func (r *runner) target() float64 {
 	if r.st.Plan != nil {
 		return r.st.Plan.Value
 	}
-	if r.node && r.p.HasWorstPlanValue {
+	if r.hasCutoff {
 		// A node aims at the value it must beat.
-		return r.p.WorstPlanValue
+		return r.cutoff
 	}
 	est := 0.05*math.Abs(r.st.Bound) + 1
 	if r.p.Sense == Maximise {
