@@ -126,7 +126,11 @@ func killedRun(t *testing.T, bin, dir string, c killCase, kills int, sig syscall
 			log += fmt.Sprintf(" run %d ended before the %v at %v;", k+1, sig, delay.Round(time.Millisecond))
 		case errors.As(err, &ee):
 			if sig == syscall.SIGKILL {
-				log += fmt.Sprintf(" %v at %v;", sig, delay.Round(time.Millisecond))
+				saved := "a checkpoint to resume"
+				if _, err := os.Stat(ck); err != nil {
+					saved = "no checkpoint yet: starts afresh"
+				}
+				log += fmt.Sprintf(" %v at %v (%s);", sig, delay.Round(time.Millisecond), saved)
 				break
 			}
 			// SIGINT/SIGTERM: exit 130 with the report and a last checkpoint.
