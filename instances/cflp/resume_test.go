@@ -108,3 +108,40 @@ func TestResumeExact(t *testing.T) {
 		check(t, readORLibFile(t, "cap41.txt", 0), decomp.Settings{Rounds: 200, Seed: 1, Gap: 1e-9, Workers: 1})
 	})
 }
+
+// FuzzRestoreRepairState: the repairer's state reader refuses what it did
+// not write and never panics; what it accepts it writes back the same.
+func FuzzRestoreRepairState(f *testing.F) {
+	in, err := Generate(12, 30, 3, 2)
+	if err != nil {
+		f.Fatal(err)
+	}
+	p, err := NewProblem(in, Options{})
+	if err != nil {
+		f.Fatal(err)
+	}
+	if _, err := decomp.Solve(context.Background(), p, decomp.Settings{Rounds: 12, Gap: -1}); err != nil {
+		f.Fatal(err)
+	}
+	good, err := p.Repair.(decomp.StatefulRepairer).RepairState()
+	if err != nil {
+		f.Fatal(err)
+	}
+	f.Add(good)
+	f.Add(good[:len(good)/2])
+	f.Add([]byte(cflpRepairTag))
+	q, err := NewProblem(in, Options{})
+	if err != nil {
+		f.Fatal(err)
+	}
+	// One repairer for every input: a restore replaces its state whole.
+	r := q.Repair.(decomp.StatefulRepairer)
+	f.Fuzz(func(t *testing.T, data []byte) {
+		if err := r.RestoreRepairState(data); err != nil {
+			return
+		}
+		if _, err := r.RepairState(); err != nil {
+			t.Fatalf("accepted state does not write back: %v", err)
+		}
+	})
+}
