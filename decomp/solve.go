@@ -285,9 +285,23 @@ func (r *runner) begin(st *State) error {
 	if len(st.Prices) != nrows || len(st.BestPrices) != nrows {
 		return fmt.Errorf("decomp: state has %d prices for %d rows", len(st.Prices), nrows)
 	}
+	if st.LastPrices != nil && len(st.LastPrices) != nrows {
+		return fmt.Errorf("decomp: state has %d last prices for %d rows", len(st.LastPrices), nrows)
+	}
 	st = st.clone()
-	if st.Status.Early() {
+	// An early stop is reopened unless the same limit would stop the run
+	// again at once (a stalled run would otherwise make one more round).
+	switch st.Status {
+	case Interrupted, TimeLimit:
 		st.Status, st.Reason = Running, ""
+	case RoundLimit:
+		if s.Rounds <= 0 || st.Round < s.Rounds {
+			st.Status, st.Reason = Running, ""
+		}
+	case Stalled:
+		if st.Idle < s.StallRounds {
+			st.Status, st.Reason = Running, ""
+		}
 	}
 	if sm, ok := s.Method.(StatefulMethod); ok && st.Method != nil {
 		if err := sm.UnmarshalState(st.Method); err != nil {
@@ -437,6 +451,7 @@ func (r *runner) round(ctx, parent context.Context) error {
 	} else {
 		st.Idle++
 	}
+	st.LastPrices = append(st.LastPrices[:0], st.Prices...)
 	if s.Observer != nil {
 		r.seen = append(r.seen[:0], st.Prices...)
 	}
@@ -505,6 +520,23 @@ func (r *runner) finish(parent, hard context.Context) (*Result, error) {
 	}
 	if r.closed() && st.Status != ProvedInfeasible {
 		st.Status = r.closedStatus()
+	}
+	if !r.evaluated && r.p.Repair != nil && st.LastPrices != nil && hard.Err() == nil &&
+		(st.Status == RoundLimit || st.Status == Stalled) {
+		// Resumed after the rounds were over: the last repair needs the
+		// last round's answers, which the state does not hold; the blocks
+		// give them again (they are exact and deterministic).
+		r.req.Prices = st.LastPrices
+		if err := r.p.Prepare(r.req); err != nil {
+			return nil, fmt.Errorf("decomp: last round again: %w", err)
+		}
+		if err := s.Evaluator.Evaluate(hard, r.p.Blocks, r.req, r.answers); err != nil {
+			if hard.Err() == nil {
+				return nil, fmt.Errorf("decomp: last round again: %w", err)
+			}
+		} else {
+			r.evaluated = true
+		}
 	}
 	// A last repair from the latest answers. After an interruption it gets
 	// a short detached deadline so that a plan is not lost.

@@ -23,6 +23,11 @@ type State struct {
 
 	Prices     []float64 // prices for the next round
 	BestPrices []float64 // prices that gave Bound
+	// LastPrices are the prices of the last round made (nil before the
+	// first): a run resumed after its rounds are over evaluates the blocks
+	// there again, so that its last repair sees the answers the
+	// uninterrupted run's last repair saw.
+	LastPrices []float64
 	Bound      float64
 	HasBound   bool
 	Plan       *Plan // best plan so far, or nil
@@ -49,6 +54,9 @@ func (s *State) clone() *State {
 	c := *s
 	c.Prices = append([]float64(nil), s.Prices...)
 	c.BestPrices = append([]float64(nil), s.BestPrices...)
+	if s.LastPrices != nil {
+		c.LastPrices = append([]float64(nil), s.LastPrices...)
+	}
 	c.History = append([]RoundRecord(nil), s.History...)
 	c.Method = append([]byte(nil), s.Method...)
 	if s.Method == nil {
@@ -95,8 +103,9 @@ func (c *Checkpoint) Match(instanceHash, settings string) error {
 	return nil
 }
 
-// Checkpoint encoding, version 2 (version 1 had no repair state; it is
-// refused, since resuming it could not repair as the uninterrupted run):
+// Checkpoint encoding, version 2 (version 1 had no repairer state and no
+// last prices; it is refused, since resuming it could not repair as the
+// uninterrupted run):
 //
 //	magic   8 bytes  "PINCRUN\x00"
 //	version uint16   little endian, 2
@@ -128,6 +137,7 @@ type checkpointRecord struct {
 	Status                 int8
 	Reason                 string
 	Prices, BestPrices     []float64
+	LastPrices             []float64
 	Bound                  float64
 	HasBound, PlanProved   bool
 	Plan, Pending          *planRecord
@@ -183,7 +193,7 @@ func EncodeCheckpoint(c *Checkpoint, codec PlanCodec) ([]byte, error) {
 	rec := checkpointRecord{
 		InstanceHash: c.InstanceHash, Settings: c.Settings,
 		Round: st.Round, Idle: st.Idle, Status: int8(st.Status), Reason: st.Reason,
-		Prices: st.Prices, BestPrices: st.BestPrices, Bound: st.Bound, HasBound: st.HasBound,
+		Prices: st.Prices, BestPrices: st.BestPrices, LastPrices: st.LastPrices, Bound: st.Bound, HasBound: st.HasBound,
 		PlanProved: st.PlanProved, PendingRound: st.PendingRound, HasPending: st.HasPending,
 		History: st.History, Method: st.Method, Repair: st.Repair, Elapsed: st.Elapsed,
 	}
@@ -237,12 +247,12 @@ func DecodeCheckpoint(data []byte, codec PlanCodec) (c *Checkpoint, err error) {
 	if err := gob.NewDecoder(bytes.NewReader(payload)).Decode(&rec); err != nil {
 		return nil, fmt.Errorf("%w: %v", ErrCheckpoint, err)
 	}
-	if len(rec.Prices) != len(rec.BestPrices) || rec.Round < 0 || rec.Idle < 0 || rec.Status < 0 || rec.Status > int8(MethodStopped) {
+	if len(rec.Prices) != len(rec.BestPrices) || (rec.LastPrices != nil && len(rec.LastPrices) != len(rec.Prices)) || rec.Round < 0 || rec.Idle < 0 || rec.Status < 0 || rec.Status > int8(MethodStopped) {
 		return nil, fmt.Errorf("%w: inconsistent state", ErrCheckpoint)
 	}
 	st := &State{
 		Round: rec.Round, Idle: rec.Idle, Status: Status(rec.Status), Reason: rec.Reason,
-		Prices: rec.Prices, BestPrices: rec.BestPrices, Bound: rec.Bound, HasBound: rec.HasBound,
+		Prices: rec.Prices, BestPrices: rec.BestPrices, LastPrices: rec.LastPrices, Bound: rec.Bound, HasBound: rec.HasBound,
 		PlanProved: rec.PlanProved, PendingRound: rec.PendingRound, HasPending: rec.HasPending,
 		History: rec.History, Method: rec.Method, Repair: rec.Repair, Elapsed: rec.Elapsed,
 	}

@@ -328,3 +328,77 @@ func TestCheckpointVersion1Refused(t *testing.T) {
 		t.Fatalf("version 1 checkpoint: %v", err)
 	}
 }
+
+// finalAware is statefulCounting whose last repair returns a plan valued
+// by the answers it is given, so that a resumed run's last repair must see
+// the same answers as the uninterrupted run's.
+type finalAware struct{ statefulCounting }
+
+func (r finalAware) Repair(ctx context.Context, in *decomp.RepairInput) (*decomp.Plan, error) {
+	if !in.Final {
+		return r.statefulCounting.Repair(ctx, in)
+	}
+	v := 0.0
+	for _, a := range in.Answers {
+		v += a.Value
+	}
+	best := 30000.0
+	if in.Best != nil {
+		best = in.Best.Value
+	}
+	// A little better than the best plan, by an amount the answers decide.
+	return &decomp.Plan{Value: best - 1 - 0.5*math.Mod(math.Abs(v), 1), Use: make([]float64, len(r.p.Rows)), Detail: []int{-1}}, nil
+}
+
+// TestResumeAfterRoundsOver: the last checkpoint of a run stopped by its
+// round limit or by stalling is taken before the last repair; a run
+// resumed from it (a kill during that repair) must make no more rounds
+// and end with the same plan as the uninterrupted run, whose last repair
+// saw the last round's answers.
+func TestResumeAfterRoundsOver(t *testing.T) {
+	for _, s := range []decomp.Settings{
+		{Rounds: 40, Seed: 2, Gap: -1, RepairEvery: 2},
+		{Rounds: 5000, StallRounds: 10, Seed: 2, Gap: -1, RepairEvery: 1000},
+	} {
+		mk := func() *decomp.Problem {
+			p := smallRun(t)
+			p.Repair = finalAware{statefulCounting{&countingRepair{pickPlan: pickPlan{p}}}}
+			return p
+		}
+		ref, err := decomp.Solve(context.Background(), mk(), s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		clean(ref)
+		var last *decomp.State
+		cs := s
+		cs.Checkpoint = func(st *decomp.State) error {
+			b, err := decomp.EncodeCheckpoint(&decomp.Checkpoint{State: st}, intsCodec{})
+			if err != nil {
+				return err
+			}
+			c, err := decomp.DecodeCheckpoint(b, intsCodec{})
+			if err == nil {
+				last = c.State
+			}
+			return err
+		}
+		if _, err := decomp.Solve(context.Background(), mk(), cs); err != nil {
+			t.Fatal(err)
+		}
+		if last == nil || last.Status != ref.Status {
+			t.Fatalf("%s: no last checkpoint with that status (%v)", ref.Status, last)
+		}
+		res, err := decomp.Resume(context.Background(), mk(), s, last)
+		if err != nil {
+			t.Fatal(err)
+		}
+		clean(res)
+		if res.Status != ref.Status || res.Rounds != ref.Rounds || res.Bound != ref.Bound || res.Plan == nil || res.Plan.Value != ref.Plan.Value ||
+			!reflect.DeepEqual(res.Prices, ref.Prices) {
+			t.Errorf("%s: resumed %s rounds %d bound %v plan %v; uninterrupted rounds %d bound %v plan %v",
+				ref.Status, res.Status, res.Rounds, res.Bound, res.Plan, ref.Rounds, ref.Bound, ref.Plan)
+		}
+		t.Logf("%s after %d rounds, plan %v", ref.Status, ref.Rounds, ref.Plan.Value)
+	}
+}

@@ -114,23 +114,37 @@ func killedRun(t *testing.T, bin, dir string, c killCase, kills int, sig syscall
 		if err := cmd.Start(); err != nil {
 			t.Fatal(err)
 		}
-		delay := time.Duration(rng.Int64N(int64(c.rounds)))
-		time.Sleep(delay)
-		if err := cmd.Process.Signal(sig); err != nil {
-			t.Fatal(err)
+		done := make(chan error, 1)
+		go func() { done <- cmd.Wait() }()
+		// The random moment counts from the first checkpoint (on a busy
+		// machine the start alone may take longer than the window).
+		for waited := 0; waited < 2000; waited++ {
+			if _, err := os.Stat(ck); err == nil {
+				break
+			}
+			time.Sleep(5 * time.Millisecond)
 		}
-		err := cmd.Wait()
+		delay := time.Duration(rng.Int64N(int64(c.rounds)))
+		var err error
+		select {
+		case err = <-done:
+		case <-time.After(delay):
+			if err := cmd.Process.Signal(sig); err != nil && !errors.Is(err, os.ErrProcessDone) {
+				t.Fatal(err)
+			}
+			err = <-done
+		}
 		var ee *exec.ExitError
 		switch {
 		case err == nil:
-			log += fmt.Sprintf(" run %d ended before the %v at %v;", k+1, sig, delay.Round(time.Millisecond))
+			log += fmt.Sprintf(" run %d ended before the %v at %v after its first checkpoint;", k+1, sig, delay.Round(time.Millisecond))
 		case errors.As(err, &ee):
 			if sig == syscall.SIGKILL {
 				saved := "a checkpoint to resume"
 				if _, err := os.Stat(ck); err != nil {
 					saved = "no checkpoint yet: starts afresh"
 				}
-				log += fmt.Sprintf(" %v at %v (%s);", sig, delay.Round(time.Millisecond), saved)
+				log += fmt.Sprintf(" %v %v after the first checkpoint (%s);", sig, delay.Round(time.Millisecond), saved)
 				break
 			}
 			// SIGINT/SIGTERM: exit 130 with the report and a last checkpoint.
@@ -143,7 +157,7 @@ func killedRun(t *testing.T, bin, dir string, c killCase, kills int, sig syscall
 			if r := outcome(t, rep); r["stop"] != "interrupted" {
 				t.Fatalf("%s: report after %v says stop %v", c.name, sig, r["stop"])
 			}
-			log += fmt.Sprintf(" %v at %v (exit 130, report and checkpoint written);", sig, delay.Round(time.Millisecond))
+			log += fmt.Sprintf(" %v %v after the first checkpoint (exit 130, report and checkpoint written);", sig, delay.Round(time.Millisecond))
 		default:
 			t.Fatal(err)
 		}
