@@ -15,7 +15,7 @@ import (
 	"time"
 )
 
-var killCampaign = flag.Int("killcampaign", 0, "also run this many interrupted and resumed runs (alternating a GAP and a facility instance, one to three SIGKILLs each; every fourth run SIGINTs instead)")
+var killCampaign = flag.Int("killcampaign", 0, "also run this many interrupted and resumed runs (alternating a GAP and a facility instance, one to three SIGKILLs each; every third run SIGINTs instead)")
 
 // killCase is a run the harness interrupts: the solve arguments (the
 // input last) and how long its rounds take, roughly, on one core (kills
@@ -187,7 +187,7 @@ func compareOutcomes(t *testing.T, name string, ref, got map[string]any) bool {
 // value, bound, rounds, stop and every row's price and use. SIGTERM must
 // exit 130 with a report and a last checkpoint, and that checkpoint
 // resumes to the same end. With -killcampaign N it then runs N more
-// runs with one to three kills each (every fourth with SIGINT).
+// runs with one to three kills each (every third with SIGINT).
 func TestKillAndResume(t *testing.T) {
 	dir := t.TempDir()
 	bin := buildPincer(t, dir)
@@ -218,8 +218,8 @@ func TestKillAndResume(t *testing.T) {
 	for i := 0; i < *killCampaign; i++ {
 		c := cases[i%len(cases)]
 		sig := syscall.SIGKILL
-		if i%4 == 3 {
-			sig = syscall.SIGINT // every fourth run: Ctrl-C, then resume
+		if i%3 == 2 {
+			sig = syscall.SIGINT // every third run (both families): Ctrl-C, then resume
 		}
 		got, log := killedRun(t, bin, dir, c, 1+rng.IntN(3), sig, rng)
 		if compareOutcomes(t, fmt.Sprintf("campaign run %d (%s)", i+1, c.name), refs[c.name], got) {
