@@ -46,8 +46,11 @@ func TestFingerprint(t *testing.T) {
 		"gap d knapsack: round-limit rounds=200 bound=6229.104498399183 plan=6266 hash=c4ac7a8b10a91293",
 		"gap d choice: round-limit rounds=200 bound=6201.310906346376 plan=6279 hash=b00ca2cdfd1e1c93",
 		// The generator writes data with at most two decimals since the CLI
-		// issue, so this instance differs from the one first pinned.
-		"cflp: search-closed rounds=105 bound=14508.036600000001 plan=14508.036600000001 hash=af70ecd42f1edbfd",
+		// issue, so this instance differs from the one first pinned. Since
+		// the site search runs on SolveNode its path (and so the warm
+		// transport bases) differ: the same open set and history, a plan
+		// value one unit in the last place away.
+		"cflp: search-closed rounds=105 bound=14508.036600000001 plan=14508.0366 hash=af70ecd42f1edbfd",
 		"many: round-limit rounds=100 bound=626568.5008650353 plan=NaN hash=e2347a6443467298",
 	}
 	var got []string

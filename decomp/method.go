@@ -76,6 +76,10 @@ type Subgradient struct {
 	Theta    float64 // starting θ; <= 0 means 2
 	Patience int     // non-improving rounds before halving θ; <= 0 means 20
 	MinTheta float64 // θ never drops below this; <= 0 means 1e-6
+	// StopTheta, when positive, ends the run (Step.Stop) as soon as a
+	// halving takes θ below it: the steps are then too short to move the
+	// bound (a short node re-solve uses it).
+	StopTheta float64
 
 	theta float64
 	idle  int
@@ -141,6 +145,9 @@ func (m *Subgradient) Update(s *RoundState, prices []float64) (Step, error) {
 		if m.idle >= patience {
 			m.theta = math.Max(m.theta/2, minTheta)
 			m.idle = 0
+			if m.StopTheta > 0 && m.theta < m.StopTheta {
+				return Step{Stop: true, Reason: fmt.Sprintf("step factor %.3g below %.3g", m.theta, m.StopTheta)}, nil
+			}
 		}
 	}
 	norm2 := 0.0

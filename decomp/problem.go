@@ -228,6 +228,19 @@ type Repairer interface {
 	Repair(ctx context.Context, in *RepairInput) (*Plan, error)
 }
 
+// StatefulRepairer is a Repairer whose own state shapes later repairs
+// (counters, caches, warm starts), so that a resumed run repairs exactly
+// as the uninterrupted one. The engine captures RepairState at every
+// checkpoint, after the repair in flight has finished, and calls
+// RestoreRepairState when Resume starts from a state that holds one
+// (before the first round). RestoreRepairState must refuse data it did not
+// write with an error, never panic.
+type StatefulRepairer interface {
+	Repairer
+	RepairState() ([]byte, error)
+	RestoreRepairState(data []byte) error
+}
+
 // Problem is a decomposed optimisation problem: blocks tied by coupling
 // rows.
 type Problem struct {
@@ -247,7 +260,8 @@ type Problem struct {
 	// worst cost). A bound beyond it proves that no feasible plan exists.
 	WorstPlanValue    float64
 	HasWorstPlanValue bool
-	// Repair is optional; without it the run gives a bound only.
+	// Repair is optional; without it the run gives a bound only. A
+	// repairer with state of its own implements StatefulRepairer.
 	Repair Repairer
 	// Fixings fix block variables for the whole run (a search node's
 	// child problem); every Request carries them, sorted by SortFixings.

@@ -252,6 +252,12 @@ type runner struct {
 	cancelPending context.CancelFunc
 	seen          []float64 // this round's prices, for the observer
 	evaluated     bool      // answers hold a round of this call
+	// Set by SolveNode: without a plan the steps aim at cutoff (when
+	// hasCutoff); with keep, the answers at the best bound are kept in
+	// best.
+	cutoff          float64
+	hasCutoff, keep bool
+	best            []Answer
 }
 
 // begin sets up the state: fresh, or restored from st.
@@ -279,9 +285,23 @@ func (r *runner) begin(st *State) error {
 	if len(st.Prices) != nrows || len(st.BestPrices) != nrows {
 		return fmt.Errorf("decomp: state has %d prices for %d rows", len(st.Prices), nrows)
 	}
+	if st.LastPrices != nil && len(st.LastPrices) != nrows {
+		return fmt.Errorf("decomp: state has %d last prices for %d rows", len(st.LastPrices), nrows)
+	}
 	st = st.clone()
-	if st.Status.Early() {
+	// An early stop is reopened unless the same limit would stop the run
+	// again at once (a stalled run would otherwise make one more round).
+	switch st.Status {
+	case Interrupted, TimeLimit:
 		st.Status, st.Reason = Running, ""
+	case RoundLimit:
+		if s.Rounds <= 0 || st.Round < s.Rounds {
+			st.Status, st.Reason = Running, ""
+		}
+	case Stalled:
+		if st.Idle < s.StallRounds {
+			st.Status, st.Reason = Running, ""
+		}
 	}
 	if sm, ok := s.Method.(StatefulMethod); ok && st.Method != nil {
 		if err := sm.UnmarshalState(st.Method); err != nil {
@@ -289,6 +309,15 @@ func (r *runner) begin(st *State) error {
 		}
 	} else if st.Method != nil {
 		return errors.New("decomp: the state holds a price rule's state but the method cannot restore it")
+	}
+	if st.Repair != nil {
+		sr, ok := p.Repair.(StatefulRepairer)
+		if !ok {
+			return errors.New("decomp: the state holds a repairer's state but the problem's repairer cannot restore it")
+		}
+		if err := sr.RestoreRepairState(st.Repair); err != nil {
+			return fmt.Errorf("decomp: restoring the repairer: %w", err)
+		}
 	}
 	r.st = st
 	return nil
@@ -358,6 +387,13 @@ func (r *runner) checkpoint() error {
 		}
 		r.st.Method = b
 	}
+	if sr, ok := r.p.Repair.(StatefulRepairer); ok {
+		b, err := sr.RepairState()
+		if err != nil {
+			return fmt.Errorf("decomp: saving the repairer's state: %w", err)
+		}
+		r.st.Repair = b
+	}
 	r.st.Elapsed = r.elapsed()
 	if err := r.s.Checkpoint(r.st); err != nil {
 		return fmt.Errorf("decomp: checkpoint after round %d: %w", r.st.Round, err)
@@ -398,6 +434,9 @@ func (r *runner) round(ctx, parent context.Context) error {
 		st.Bound, st.HasBound = value, true
 		copy(st.BestPrices, st.Prices)
 		improved = true
+		if r.keep {
+			r.keepBest()
+		}
 	}
 	planImproved := false
 	if st.Round == 1 || st.Round%s.RepairEvery == 0 {
@@ -412,6 +451,7 @@ func (r *runner) round(ctx, parent context.Context) error {
 	} else {
 		st.Idle++
 	}
+	st.LastPrices = append(st.LastPrices[:0], st.Prices...)
 	if s.Observer != nil {
 		r.seen = append(r.seen[:0], st.Prices...)
 	}
@@ -480,6 +520,23 @@ func (r *runner) finish(parent, hard context.Context) (*Result, error) {
 	}
 	if r.closed() && st.Status != ProvedInfeasible {
 		st.Status = r.closedStatus()
+	}
+	if !r.evaluated && r.p.Repair != nil && st.LastPrices != nil && hard.Err() == nil &&
+		(st.Status == RoundLimit || st.Status == Stalled) {
+		// Resumed after the rounds were over: the last repair needs the
+		// last round's answers, which the state does not hold; the blocks
+		// give them again (they are exact and deterministic).
+		r.req.Prices = st.LastPrices
+		if err := r.p.Prepare(r.req); err != nil {
+			return nil, fmt.Errorf("decomp: last round again: %w", err)
+		}
+		if err := s.Evaluator.Evaluate(hard, r.p.Blocks, r.req, r.answers); err != nil {
+			if hard.Err() == nil {
+				return nil, fmt.Errorf("decomp: last round again: %w", err)
+			}
+		} else {
+			r.evaluated = true
+		}
 	}
 	// A last repair from the latest answers. After an interruption it gets
 	// a short detached deadline so that a plan is not lost.
@@ -561,9 +618,26 @@ func (r *runner) project() float64 {
 	return math.Sqrt(norm2)
 }
 
+// keepBest copies this round's answers as the answers at the best bound.
+func (r *runner) keepBest() {
+	if len(r.best) != len(r.answers) {
+		r.best = make([]Answer, len(r.answers))
+	}
+	for k, a := range r.answers {
+		b := &r.best[k]
+		b.Value, b.Cost = a.Value, a.Cost
+		b.Use = append(b.Use[:0], a.Use...)
+		b.Primal = append(b.Primal[:0], a.Primal...)
+	}
+}
+
 func (r *runner) target() float64 {
 	if r.st.Plan != nil {
 		return r.st.Plan.Value
+	}
+	if r.hasCutoff {
+		// A node aims at the value it must beat.
+		return r.cutoff
 	}
 	est := 0.05*math.Abs(r.st.Bound) + 1
 	if r.p.Sense == Maximise {
@@ -631,7 +705,22 @@ func (r *runner) launchRepair(ctx context.Context, round int) {
 	}
 	in := r.repairInput(round, false, true)
 	ch := make(chan repairOutcome, 1)
-	rctx, cancel := context.WithCancel(ctx)
+	var rctx context.Context
+	var cancel context.CancelFunc
+	if r.s.Checkpoint == nil {
+		rctx, cancel = context.WithCancel(ctx)
+	} else {
+		// With checkpoints an interruption lets the repair in flight
+		// finish (its effort is bounded by moves), so that the last
+		// checkpoint holds the repair the uninterrupted run would have
+		// merged; a time limit still cuts it, and dropRepair cancels it.
+		detached := context.WithoutCancel(ctx)
+		if dl, ok := ctx.Deadline(); ok {
+			rctx, cancel = context.WithDeadline(detached, dl)
+		} else {
+			rctx, cancel = context.WithCancel(detached)
+		}
+	}
 	work := func() {
 		plan, err := r.p.Repair.Repair(rctx, in)
 		ch <- repairOutcome{round: round, plan: plan, err: err, cancelled: rctx.Err() != nil}

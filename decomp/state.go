@@ -23,6 +23,11 @@ type State struct {
 
 	Prices     []float64 // prices for the next round
 	BestPrices []float64 // prices that gave Bound
+	// LastPrices are the prices of the last round made (nil before the
+	// first): a run resumed after its rounds are over evaluates the blocks
+	// there again, so that its last repair sees the answers the
+	// uninterrupted run's last repair saw.
+	LastPrices []float64
 	Bound      float64
 	HasBound   bool
 	Plan       *Plan // best plan so far, or nil
@@ -36,7 +41,9 @@ type State struct {
 	HasPending   bool
 
 	History []RoundRecord
-	Method  []byte        // the StatefulMethod's own state, or nil
+	Method  []byte // the StatefulMethod's own state, or nil
+	// Repair is the StatefulRepairer's own state, or nil.
+	Repair  []byte
 	Elapsed time.Duration // run time before this call (set at checkpoints)
 
 	// elapsed0 is Elapsed when the call began.
@@ -47,10 +54,17 @@ func (s *State) clone() *State {
 	c := *s
 	c.Prices = append([]float64(nil), s.Prices...)
 	c.BestPrices = append([]float64(nil), s.BestPrices...)
+	if s.LastPrices != nil {
+		c.LastPrices = append([]float64(nil), s.LastPrices...)
+	}
 	c.History = append([]RoundRecord(nil), s.History...)
 	c.Method = append([]byte(nil), s.Method...)
 	if s.Method == nil {
 		c.Method = nil
+	}
+	c.Repair = append([]byte(nil), s.Repair...)
+	if s.Repair == nil {
+		c.Repair = nil
 	}
 	c.elapsed0 = s.Elapsed
 	return &c
@@ -89,16 +103,18 @@ func (c *Checkpoint) Match(instanceHash, settings string) error {
 	return nil
 }
 
-// Checkpoint encoding, version 1:
+// Checkpoint encoding, version 2 (version 1 had no repairer state and no
+// last prices; it is refused, since resuming it could not repair as the
+// uninterrupted run):
 //
 //	magic   8 bytes  "PINCRUN\x00"
-//	version uint16   little endian, 1
+//	version uint16   little endian, 2
 //	length  uint64   little endian, bytes of payload
 //	payload          gob of the checkpoint record (plans' Detail through the PlanCodec)
 //	crc     uint32   little endian, CRC-32 (IEEE) of payload
 const (
 	checkpointMagic   = "PINCRUN\x00"
-	checkpointVersion = 1
+	checkpointVersion = 2
 	checkpointHeader  = len(checkpointMagic) + 2 + 8
 	maxCheckpoint     = 1 << 34
 )
@@ -121,13 +137,14 @@ type checkpointRecord struct {
 	Status                 int8
 	Reason                 string
 	Prices, BestPrices     []float64
+	LastPrices             []float64
 	Bound                  float64
 	HasBound, PlanProved   bool
 	Plan, Pending          *planRecord
 	PendingRound           int
 	HasPending             bool
 	History                []RoundRecord
-	Method                 []byte
+	Method, Repair         []byte
 	Elapsed                time.Duration
 }
 
@@ -176,9 +193,9 @@ func EncodeCheckpoint(c *Checkpoint, codec PlanCodec) ([]byte, error) {
 	rec := checkpointRecord{
 		InstanceHash: c.InstanceHash, Settings: c.Settings,
 		Round: st.Round, Idle: st.Idle, Status: int8(st.Status), Reason: st.Reason,
-		Prices: st.Prices, BestPrices: st.BestPrices, Bound: st.Bound, HasBound: st.HasBound,
+		Prices: st.Prices, BestPrices: st.BestPrices, LastPrices: st.LastPrices, Bound: st.Bound, HasBound: st.HasBound,
 		PlanProved: st.PlanProved, PendingRound: st.PendingRound, HasPending: st.HasPending,
-		History: st.History, Method: st.Method, Elapsed: st.Elapsed,
+		History: st.History, Method: st.Method, Repair: st.Repair, Elapsed: st.Elapsed,
 	}
 	var err error
 	if rec.Plan, err = encodePlan(st.Plan, codec); err != nil {
@@ -207,6 +224,9 @@ func DecodeCheckpoint(data []byte, codec PlanCodec) (c *Checkpoint, err error) {
 		return nil, fmt.Errorf("%w: no checkpoint header", ErrCheckpoint)
 	}
 	if v := binary.LittleEndian.Uint16(data[len(checkpointMagic):]); v != checkpointVersion {
+		if v < checkpointVersion {
+			return nil, fmt.Errorf("%w: version %d was written by an older build without the repairer's state, so the run could not continue exactly; this build reads version %d (start the run afresh)", ErrCheckpoint, v, checkpointVersion)
+		}
 		return nil, fmt.Errorf("%w: version %d, this build reads version %d", ErrCheckpoint, v, checkpointVersion)
 	}
 	n := binary.LittleEndian.Uint64(data[len(checkpointMagic)+2:])
@@ -227,14 +247,14 @@ func DecodeCheckpoint(data []byte, codec PlanCodec) (c *Checkpoint, err error) {
 	if err := gob.NewDecoder(bytes.NewReader(payload)).Decode(&rec); err != nil {
 		return nil, fmt.Errorf("%w: %v", ErrCheckpoint, err)
 	}
-	if len(rec.Prices) != len(rec.BestPrices) || rec.Round < 0 || rec.Idle < 0 || rec.Status < 0 || rec.Status > int8(MethodStopped) {
+	if len(rec.Prices) != len(rec.BestPrices) || (rec.LastPrices != nil && len(rec.LastPrices) != len(rec.Prices)) || rec.Round < 0 || rec.Idle < 0 || rec.Status < 0 || rec.Status > int8(MethodStopped) {
 		return nil, fmt.Errorf("%w: inconsistent state", ErrCheckpoint)
 	}
 	st := &State{
 		Round: rec.Round, Idle: rec.Idle, Status: Status(rec.Status), Reason: rec.Reason,
-		Prices: rec.Prices, BestPrices: rec.BestPrices, Bound: rec.Bound, HasBound: rec.HasBound,
+		Prices: rec.Prices, BestPrices: rec.BestPrices, LastPrices: rec.LastPrices, Bound: rec.Bound, HasBound: rec.HasBound,
 		PlanProved: rec.PlanProved, PendingRound: rec.PendingRound, HasPending: rec.HasPending,
-		History: rec.History, Method: rec.Method, Elapsed: rec.Elapsed,
+		History: rec.History, Method: rec.Method, Repair: rec.Repair, Elapsed: rec.Elapsed,
 	}
 	if st.Prices == nil {
 		st.Prices, st.BestPrices = []float64{}, []float64{}

@@ -8,6 +8,7 @@ import (
 	"math"
 	"path/filepath"
 	"reflect"
+	"strings"
 	"sync/atomic"
 	"testing"
 	"time"
@@ -205,4 +206,199 @@ func FuzzDecodeCheckpoint(f *testing.F) {
 			t.Fatalf("decoded checkpoint does not re-encode: %v", err)
 		}
 	})
+}
+
+// countingRepair hands over a plan only on every third call (counting
+// every call), better the more calls it has made: a repairer whose later
+// repairs depend on its own state. (The plan is a stand-in: the test is
+// about the engine's bookkeeping, and its value stays far above the bound.)
+type countingRepair struct {
+	pickPlan
+	calls int
+}
+
+func (r *countingRepair) Repair(_ context.Context, in *decomp.RepairInput) (*decomp.Plan, error) {
+	r.calls++
+	if r.calls%3 != 1 {
+		return nil, nil
+	}
+	return &decomp.Plan{Value: 20000 - 100*float64(r.calls), Use: make([]float64, len(r.p.Rows)), Detail: []int{r.calls}}, nil
+}
+
+type statefulCounting struct{ *countingRepair }
+
+func (r statefulCounting) RepairState() ([]byte, error) { return []byte{'c', byte(r.calls)}, nil }
+
+func (r statefulCounting) RestoreRepairState(b []byte) error {
+	if len(b) != 2 || b[0] != 'c' {
+		return errors.New("not a counting repairer's state")
+	}
+	r.calls = int(b[1])
+	return nil
+}
+
+// TestResumeRepairState: a repairer's own counter is saved at a checkpoint
+// and restored on resume, so the resumed run equals the uninterrupted one;
+// the same repairer without the interface (its counter restarting at zero)
+// gives another run, which shows the check can fail.
+func TestResumeRepairState(t *testing.T) {
+	s := decomp.Settings{Rounds: 90, Seed: 5, Gap: -1, RepairEvery: 2, Evaluator: decomp.Pool{Workers: 2}}
+	mk := func(stateful bool) *decomp.Problem {
+		p := smallRun(t)
+		c := &countingRepair{pickPlan: pickPlan{p}}
+		p.Repair = c
+		if stateful {
+			p.Repair = statefulCounting{c}
+		}
+		return p
+	}
+	run := func(stateful bool, k int) *decomp.Result {
+		var saved *decomp.State
+		p := mk(stateful)
+		ctx, cancel := context.WithCancel(context.Background())
+		defer cancel()
+		cs := s
+		cs.CheckpointEvery = k
+		cs.Checkpoint = func(st *decomp.State) error {
+			if st.Round != k {
+				return nil
+			}
+			cancel()
+			b, err := decomp.EncodeCheckpoint(&decomp.Checkpoint{State: st}, p.Plans)
+			if err != nil {
+				return err
+			}
+			c, err := decomp.DecodeCheckpoint(b, p.Plans)
+			saved = c.State
+			return err
+		}
+		if _, err := decomp.Solve(ctx, p, cs); err != nil {
+			t.Fatal(err)
+		}
+		if stateful && saved.Repair == nil {
+			t.Fatal("the checkpoint holds no repairer state")
+		}
+		res, err := decomp.Resume(context.Background(), mk(stateful), s, saved)
+		if err != nil {
+			t.Fatal(err)
+		}
+		clean(res)
+		return res
+	}
+	ref, err := decomp.Solve(context.Background(), mk(true), s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	clean(ref)
+	same := func(a, b *decomp.Result) bool {
+		return a.Rounds == b.Rounds && a.Bound == b.Bound && (a.Plan == nil) == (b.Plan == nil) &&
+			(a.Plan == nil || a.Plan.Value == b.Plan.Value) && reflect.DeepEqual(a.Prices, b.Prices) &&
+			reflect.DeepEqual(a.History, b.History)
+	}
+	differs := 0
+	for _, k := range []int{3, 10, 31} {
+		if res := run(true, k); !same(ref, res) {
+			t.Errorf("k=%d: resumed run (bound %v plan %v) differs from the uninterrupted run (bound %v plan %v)", k, res.Bound, res.Plan, ref.Bound, ref.Plan)
+		}
+		if !same(ref, run(false, k)) {
+			differs++
+		}
+	}
+	if differs == 0 {
+		t.Error("without its saved state the repairer resumed identically every time: the check cannot fail")
+	}
+
+	// A state with a repairer's state is refused by a repairer without one.
+	if _, err := decomp.Resume(context.Background(), mk(false), s, &decomp.State{Prices: make([]float64, 8), BestPrices: make([]float64, 8), Repair: []byte("c\x01")}); err == nil {
+		t.Error("a repairer's state was accepted by a repairer that cannot restore it")
+	}
+}
+
+// TestCheckpointVersion1Refused: a checkpoint of the first layout (no
+// repairer state) is refused with a message saying why.
+func TestCheckpointVersion1Refused(t *testing.T) {
+	st := &decomp.State{Round: 3, Prices: []float64{1}, BestPrices: []float64{1}}
+	b, err := decomp.EncodeCheckpoint(&decomp.Checkpoint{State: st}, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	b[8], b[9] = 1, 0
+	_, err = decomp.DecodeCheckpoint(b, nil)
+	if !errors.Is(err, decomp.ErrCheckpoint) || !strings.Contains(err.Error(), "version 1") || !strings.Contains(err.Error(), "older build") {
+		t.Fatalf("version 1 checkpoint: %v", err)
+	}
+}
+
+// finalAware is statefulCounting whose last repair returns a plan valued
+// by the answers it is given, so that a resumed run's last repair must see
+// the same answers as the uninterrupted run's.
+type finalAware struct{ statefulCounting }
+
+func (r finalAware) Repair(ctx context.Context, in *decomp.RepairInput) (*decomp.Plan, error) {
+	if !in.Final {
+		return r.statefulCounting.Repair(ctx, in)
+	}
+	v := 0.0
+	for _, a := range in.Answers {
+		v += a.Value
+	}
+	best := 30000.0
+	if in.Best != nil {
+		best = in.Best.Value
+	}
+	// A little better than the best plan, by an amount the answers decide.
+	return &decomp.Plan{Value: best - 1 - 0.5*math.Mod(math.Abs(v), 1), Use: make([]float64, len(r.p.Rows)), Detail: []int{-1}}, nil
+}
+
+// TestResumeAfterRoundsOver: the last checkpoint of a run stopped by its
+// round limit or by stalling is taken before the last repair; a run
+// resumed from it (a kill during that repair) must make no more rounds
+// and end with the same plan as the uninterrupted run, whose last repair
+// saw the last round's answers.
+func TestResumeAfterRoundsOver(t *testing.T) {
+	for _, s := range []decomp.Settings{
+		{Rounds: 40, Seed: 2, Gap: -1, RepairEvery: 2},
+		{Rounds: 5000, StallRounds: 10, Seed: 2, Gap: -1, RepairEvery: 1000},
+	} {
+		mk := func() *decomp.Problem {
+			p := smallRun(t)
+			p.Repair = finalAware{statefulCounting{&countingRepair{pickPlan: pickPlan{p}}}}
+			return p
+		}
+		ref, err := decomp.Solve(context.Background(), mk(), s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		clean(ref)
+		var last *decomp.State
+		cs := s
+		cs.Checkpoint = func(st *decomp.State) error {
+			b, err := decomp.EncodeCheckpoint(&decomp.Checkpoint{State: st}, intsCodec{})
+			if err != nil {
+				return err
+			}
+			c, err := decomp.DecodeCheckpoint(b, intsCodec{})
+			if err == nil {
+				last = c.State
+			}
+			return err
+		}
+		if _, err := decomp.Solve(context.Background(), mk(), cs); err != nil {
+			t.Fatal(err)
+		}
+		if last == nil || last.Status != ref.Status {
+			t.Fatalf("%s: no last checkpoint with that status (%v)", ref.Status, last)
+		}
+		res, err := decomp.Resume(context.Background(), mk(), s, last)
+		if err != nil {
+			t.Fatal(err)
+		}
+		clean(res)
+		if res.Status != ref.Status || res.Rounds != ref.Rounds || res.Bound != ref.Bound || res.Plan == nil || res.Plan.Value != ref.Plan.Value ||
+			!reflect.DeepEqual(res.Prices, ref.Prices) {
+			t.Errorf("%s: resumed %s rounds %d bound %v plan %v; uninterrupted rounds %d bound %v plan %v",
+				ref.Status, res.Status, res.Rounds, res.Bound, res.Plan, ref.Rounds, ref.Bound, ref.Plan)
+		}
+		t.Logf("%s after %d rounds, plan %v", ref.Status, ref.Rounds, ref.Plan.Value)
+	}
 }

@@ -394,12 +394,8 @@ func NewProblem(in *Instance, opt Options) (*decomp.Problem, error) {
 	if err != nil {
 		return nil, err
 	}
-	n := len(in.Customers)
 	p := &decomp.Problem{Name: in.Name, Sense: decomp.Minimise, Plans: decomp.GobPlans[*Solution]{}}
-	p.Rows = make([]decomp.Row, n)
-	for j, c := range in.Customers {
-		p.Rows[j] = decomp.Row{Name: "demand " + c.ID, Sense: decomp.Equal, RHS: 1}
-	}
+	p.Rows = demandRows(in)
 	switch md.relax {
 	case SiteRelaxation:
 		p.Blocks = make([]decomp.Block, len(in.Sites))
@@ -412,6 +408,15 @@ func NewProblem(in *Instance, opt Options) (*decomp.Problem, error) {
 	p.Prices = startPrices(md)
 	p.Repair = newRepairer(md)
 	return p, nil
+}
+
+// demandRows are the coupling rows: Σ_i x_ij = 1 for every customer j.
+func demandRows(in *Instance) []decomp.Row {
+	rows := make([]decomp.Row, len(in.Customers))
+	for j, c := range in.Customers {
+		rows[j] = decomp.Row{Name: "demand " + c.ID, Sense: decomp.Equal, RHS: 1}
+	}
+	return rows
 }
 
 // startPrices sets λ_j to minus the cheapest cost of serving customer j

@@ -53,6 +53,7 @@ type repairer struct {
 	sc    scratch
 	score []float64 // site values at the current prices (lower = more attractive)
 	ss    *singleSource
+	node  *decomp.Problem // the site search's own problem, built on first use
 }
 
 func newRepairer(shared *model) *repairer {
@@ -508,15 +509,9 @@ func (r *repairer) evaluate(open []bool) (float64, error) {
 func (r *repairer) allocate(open []bool) (*transport.Solution, error) {
 	md := r.md
 	if r.tp == nil {
-		p := &transport.Problem{Supply: make([]float64, len(md.sites)), Demand: make([]float64, len(md.in.Customers)), Cost: r.unit}
-		for j, c := range md.in.Customers {
-			p.Demand[j] = c.Demand
+		if err := r.newSolver(); err != nil {
+			return nil, err
 		}
-		tp, err := transport.NewSolver(p)
-		if err != nil {
-			return nil, fmt.Errorf("cflp: allocation: %w", err)
-		}
-		r.tp = tp
 	}
 	for i, o := range open {
 		s := 0.0
@@ -538,6 +533,21 @@ func (r *repairer) allocate(open []bool) (*transport.Solution, error) {
 		return nil, fmt.Errorf("cflp: allocation: %w", err)
 	}
 	return sol, nil
+}
+
+// newSolver sets up the warm transport solver with every supply zero.
+func (r *repairer) newSolver() error {
+	md := r.md
+	p := &transport.Problem{Supply: make([]float64, len(md.sites)), Demand: make([]float64, len(md.in.Customers)), Cost: r.unit}
+	for j, c := range md.in.Customers {
+		p.Demand[j] = c.Demand
+	}
+	tp, err := transport.NewSolver(p)
+	if err != nil {
+		return fmt.Errorf("cflp: allocation: %w", err)
+	}
+	r.tp = tp
+	return nil
 }
 
 // solution builds the plan of an open set.
@@ -661,29 +671,20 @@ func (s *singleSource) evaluate(open []bool) (float64, error) {
 }
 
 // branchAndBound searches the site set exhaustively: each node fixes some
-// sites open or closed, bounds the node by subgradient steps on the
-// aggregate (or site) relaxation with those sites forced, prunes when the
-// bound reaches the incumbent, tries the node's relaxed open set as a plan,
-// and branches on the free site whose value is closest to zero. It returns
-// the best open set found (the incumbent when nothing better is found or
-// the budget runs out); complete reports that the search closed, which
-// proves the returned open set optimal (within 1e-9 relative).
+// sites open or closed (as engine fixings of the y variables), bounds the
+// node by the engine's node re-solve (decomp.SolveNode: a short dual ascent
+// on the run's relaxation from the parent's prices, cut off at the
+// incumbent), tries the node's relaxed open set as a plan, and branches on
+// the free site whose value is closest to zero. It returns the best open
+// set found (the incumbent when nothing better is found or the budget runs
+// out); complete reports that the search closed, which proves the returned
+// open set optimal (within 1e-9 relative).
 func (r *repairer) branchAndBound(ctx context.Context, prices []float64, open []bool, value float64) (bestOpen []bool, best float64, complete bool, err error) {
 	md := r.md
 	m, n := len(md.sites), len(md.in.Customers)
-	nm := *md
-	nm.sites = slices.Clone(md.sites)
-	var blocks []decomp.Block
-	if nm.relax == AggregateRelaxation {
-		blocks = []decomp.Block{newAggregateBlock(&nm)}
-	} else {
-		for i := range nm.sites {
-			blocks = append(blocks, &siteBlock{md: &nm, i: i})
-		}
+	if r.node == nil {
+		r.node = r.nodeProblem()
 	}
-	answers := make([]decomp.Answer, len(blocks))
-	req := &decomp.Request{Sense: decomp.Minimise}
-	g := make([]float64, n)
 	bestOpen, best = slices.Clone(open), value
 	tol := func() float64 { return 1e-9 * math.Max(1, math.Abs(best)) }
 
@@ -702,16 +703,17 @@ func (r *repairer) branchAndBound(ctx context.Context, prices []float64, open []
 	stack := []node{root}
 	values := make([]float64, m)
 	sc := &scratch{}
-	// The work is bounded by nodes and by subgradient iterations, counted
-	// in site-customer cells so that large instances get fewer.
+	var relaxOpen []bool
+	// The work is bounded by nodes and by dual ascent rounds, counted in
+	// site-customer cells so that large instances get fewer.
 	work := md.opt.ExactWork
 	if work <= 0 {
 		work = 1e8
 	}
-	iterLeft := int(work / float64(m*n))
+	roundsLeft := int(work / float64(m*n))
 	cut := false
 	for nodes := 0; len(stack) > 0; nodes++ {
-		if nodes >= limit || iterLeft <= 0 {
+		if nodes >= limit || roundsLeft <= 0 {
 			cut = true
 			break
 		}
@@ -720,55 +722,29 @@ func (r *repairer) branchAndBound(ctx context.Context, prices []float64, open []
 		}
 		nd := stack[len(stack)-1]
 		stack = stack[:len(stack)-1]
-		for i := range nm.sites {
-			nm.sites[i].status = nd.fix[i]
-		}
-		lam := nd.prices
-		bestL, bestLam := math.Inf(-1), slices.Clone(lam)
-		var relaxOpen []bool
-		iters := 60
+		rounds := nodeRounds
 		if nodes == 0 {
-			iters = 300
+			rounds = rootRounds
 		}
-		theta, idle := 1.0, 0
-		for it := 0; it < iters; it++ {
-			iterLeft--
-			req.Prices = lam
-			L := 0.0
-			clear(g)
-			for k, b := range blocks {
-				if err := b.Solve(ctx, req, &answers[k]); err != nil {
-					return nil, 0, false, err
-				}
-				L += answers[k].Value
-				for _, e := range answers[k].Use {
-					g[e.Index] += e.Value
-				}
-			}
-			norm := 0.0
-			for j := range g {
-				L -= lam[j]
-				g[j] -= 1
-				norm += g[j] * g[j]
-			}
-			if L > bestL {
-				bestL, idle = L, 0
-				copy(bestLam, lam)
-				relaxOpen = r.openOf(answers, relaxOpen)
-			} else if idle++; idle >= 5 {
-				theta, idle = theta/2, 0
-			}
-			if bestL >= best-tol() || norm == 0 || theta < 1e-4 {
-				break
-			}
-			t := theta * (best - L) / norm
-			for j := range lam {
-				lam[j] += t * g[j]
-			}
+		res, err := decomp.SolveNode(ctx, r.node, decomp.NodeSettings{
+			Prices: nd.prices, Fixings: r.siteFixings(nd.fix), Rounds: min(rounds, roundsLeft),
+			Cutoff: best - tol(), HasCutoff: true, KeepBest: true,
+			// One goroutine: the search runs beside the run's rounds.
+			Evaluator: decomp.Pool{Workers: 1},
+			Method:    &decomp.Subgradient{Theta: 1, Patience: 5, StopTheta: 1e-4},
+		})
+		if err != nil {
+			return nil, 0, false, fmt.Errorf("cflp: site search: %w", err)
 		}
-		if bestL >= best-tol() {
+		roundsLeft -= max(1, res.Rounds)
+		if res.Infeasible || res.CutOff {
 			continue
 		}
+		if !res.HasBound {
+			break // interrupted before a round completed
+		}
+		bestL, bestLam := res.Bound, res.Prices
+		relaxOpen = r.openOf(res.BestAnswers, relaxOpen)
 		// The node's relaxed open set, completed, is a candidate plan.
 		cand := slices.Clone(relaxOpen)
 		for i, f := range nd.fix {
@@ -780,12 +756,12 @@ func (r *repairer) branchAndBound(ctx context.Context, prices []float64, open []
 			}
 		}
 		// Rank by the node's site values for completion and branching.
-		for i := range nm.sites {
+		for i := range md.sites {
 			values[i] = 0
 			if nd.fix[i] == ForcedClosed {
 				continue
 			}
-			if err := nm.eval(i, sc, bestLam, false); err != nil {
+			if err := md.eval(i, sc, bestLam, false); err != nil {
 				return nil, 0, false, err
 			}
 			values[i] = sc.value
@@ -824,6 +800,51 @@ func (r *repairer) branchAndBound(ctx context.Context, prices []float64, open []
 		}
 	}
 	return bestOpen, best, len(stack) == 0 && !cut && ctx.Err() == nil, nil
+}
+
+// Dual ascent rounds of the site search at the root and at other nodes.
+const (
+	rootRounds = 300
+	nodeRounds = 60
+)
+
+// nodeProblem is the engine problem the site search re-solves: the run's
+// rows and relaxation, with blocks of its own over the repairer's copy of
+// the model, so that a search never touches the blocks the run's rounds
+// are evaluating. Sites are fixed through Problem fixings, never through
+// their statuses.
+func (r *repairer) nodeProblem() *decomp.Problem {
+	md := r.md
+	p := &decomp.Problem{Name: md.in.Name + " site search", Sense: decomp.Minimise, Rows: demandRows(md.in)}
+	if md.relax == AggregateRelaxation {
+		p.Blocks = []decomp.Block{newAggregateBlock(md)}
+	} else {
+		for i := range md.sites {
+			p.Blocks = append(p.Blocks, &siteBlock{md: md, i: i})
+		}
+	}
+	return p
+}
+
+// siteFixings turns a node's site statuses into fixings of the y
+// variables of the sites whose status differs from the instance's.
+func (r *repairer) siteFixings(fix []SiteFixing) []decomp.Fixing {
+	var out []decomp.Fixing
+	for i, f := range fix {
+		if f == r.md.sites[i].status || f == Free {
+			continue
+		}
+		v := 0.0
+		if f == ForcedOpen {
+			v = 1
+		}
+		if r.md.relax == AggregateRelaxation {
+			out = append(out, decomp.Fixing{Block: 0, Var: i, Value: v})
+		} else {
+			out = append(out, decomp.Fixing{Block: i, Var: 0, Value: v})
+		}
+	}
+	return out
 }
 
 // closedFeasible reports whether the sites not forced closed can cover the

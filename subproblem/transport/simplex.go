@@ -39,6 +39,9 @@ type Solver struct {
 	next   []int     // next sibling, -1 if none
 	prev   []int     // previous sibling, -1 if first child
 	warm   bool      // the basis holds the result of an earlier Solve
+	// restored, when not nil, replaces the basis as the next start (see
+	// SetWarmFlows).
+	restored []Shipment
 
 	// SkipDuals, when set, leaves SiteDual and CustomerDual nil, which
 	// saves a pass over the lanes of every closed site.
@@ -123,9 +126,12 @@ func (s *Solver) Solve() (*Solution, error) {
 			s.open = append(s.open, i)
 		}
 	}
-	if s.warm {
+	switch {
+	case s.restored != nil:
+		s.restoredFlows()
+	case s.warm:
 		s.warmFlows()
-	} else {
+	default:
 		s.greedyFlows()
 	}
 	s.buildBasis()
@@ -209,6 +215,12 @@ func (s *Solver) warmFlows() {
 			s.fa = append(s.fa, flowArc{a / s.n, a % s.n, s.flow[v]})
 		}
 	}
+	s.reduceFlows()
+}
+
+// reduceFlows cuts the flows in s.fa where supplies or demands have
+// shrunk below them and drops those that vanish.
+func (s *Solver) reduceFlows() {
 	out := s.resid[1 : 1+s.m]
 	in := s.resid[1+s.m:]
 	clear(s.resid)
