@@ -46,7 +46,7 @@ func CBC(tb testing.TB, write func(io.Writer) error, seconds int) Outcome {
 	}
 	// The wall-clock guard is far beyond the CPU limit; it only stops a
 	// hung process.
-	ctx, cancel := context.WithTimeout(context.Background(), time.Duration(4*seconds+30)*time.Second)
+	ctx, cancel := context.WithTimeout(context.Background(), time.Duration(10*seconds+60)*time.Second)
 	defer cancel()
 	out, err := exec.CommandContext(ctx, bin, model, "sec", strconv.Itoa(seconds), "solve").CombinedOutput()
 	text := string(out)
