@@ -295,7 +295,7 @@ func runBenchRow(ctx context.Context, f *benchFlags, rr resolvedRow, peerBin str
 		if ctx.Err() != nil {
 			r.peer = &peerOutcome{status: "not-run", note: "interrupted", threads: f.workers}
 		} else {
-			r.peer = runCBC(ctx, peerBin, m, f.time, f.workers)
+			r.peer = runCBC(ctx, peerBin, m, f.time, peerGrace(f.time), f.workers)
 		}
 	}
 	return r

@@ -504,3 +504,59 @@ func FuzzReadManifest(f *testing.F) {
 		}
 	})
 }
+
+// fakeCBC writes a shell script that prints text and then sleeps, standing
+// in for cbc where the test is about the bench's handling of its output.
+func fakeCBC(t *testing.T, text string, sleep int) string {
+	t.Helper()
+	path := filepath.Join(t.TempDir(), "cbc")
+	script := "#!/bin/sh\ncat <<'END'\n" + text + "\nEND\n"
+	if sleep > 0 {
+		script += "exec sleep " + strconv.Itoa(sleep) + "\n"
+	}
+	if err := os.WriteFile(path, []byte(script), 0o755); err != nil {
+		t.Fatal(err)
+	}
+	return path
+}
+
+func loadGapTestdata(t *testing.T, sense string) instances.Model {
+	t.Helper()
+	e, err := findFormat("gap-orlib")
+	if err != nil {
+		t.Fatal(err)
+	}
+	v, err := instances.Defaults(e.fam.Options())
+	if err != nil {
+		t.Fatal(err)
+	}
+	v["sense"] = sense
+	m, err := e.fam.Load("gap-orlib", "../../testdata/gap-c-5x30.txt", v)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return m
+}
+
+// TestRunCBCSenseAndGuard: a maximisation model's values come back with
+// the sign turned (the MPS minimises the negated profit), and a peer that
+// overruns its limit is stopped by the guard with what it printed kept.
+func TestRunCBCSenseAndGuard(t *testing.T) {
+	if _, err := exec.LookPath("sh"); err != nil {
+		t.Skip("no shell for the stand-in solver")
+	}
+	optimal := "Result - Optimal solution found\n\nObjective value:                -1208.00000000\n"
+	o := runCBC(context.Background(), fakeCBC(t, optimal, 0), loadGapTestdata(t, "max"), time.Second, time.Second, 2)
+	if o.status != "optimal" || o.plan != 1208 || o.bound != 1208 || o.threads != 2 {
+		t.Errorf("max: %+v", o)
+	}
+	progress := "Cbc0010I After 0 nodes, 1 on tree, 2838 best solution, best possible 2799.4316 (3.14 seconds)"
+	start := time.Now()
+	o = runCBC(context.Background(), fakeCBC(t, progress, 60), loadGapTestdata(t, "min"), 500*time.Millisecond, time.Second, 1)
+	if el := time.Since(start); el > 10*time.Second {
+		t.Errorf("the guard took %v", el)
+	}
+	if o.status != "guard" || o.plan != 2838 || o.bound != 2799.4316 || o.seconds < 1.4 {
+		t.Errorf("guard: %+v", o)
+	}
+}

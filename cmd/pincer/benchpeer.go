@@ -167,9 +167,9 @@ func peerGrace(limit time.Duration) time.Duration {
 }
 
 // runCBC exports m as MPS to a temporary file and runs cbc on it with the
-// wall time limit and thread count. A cancelled ctx stops cbc; whatever it
-// printed by then is read.
-func runCBC(ctx context.Context, bin string, m instances.Model, limit time.Duration, threads int) *peerOutcome {
+// wall time limit and thread count; past limit+grace the guard stops it. A
+// cancelled ctx stops cbc too; whatever it printed by then is read.
+func runCBC(ctx context.Context, bin string, m instances.Model, limit, grace time.Duration, threads int) *peerOutcome {
 	out := &peerOutcome{threads: threads}
 	ex, ok := m.(instances.MPSExporter)
 	if !ok {
@@ -201,7 +201,7 @@ func runCBC(ctx context.Context, bin string, m instances.Model, limit time.Durat
 	if sb, err := exec.LookPath("stdbuf"); err == nil {
 		name, args = sb, append([]string{"-oL", bin}, args...)
 	}
-	runCtx, cancel := context.WithTimeout(ctx, limit+peerGrace(limit))
+	runCtx, cancel := context.WithTimeout(ctx, limit+grace)
 	defer cancel()
 	cmd := exec.CommandContext(runCtx, name, args...)
 	cmd.Cancel = func() error { return cmd.Process.Signal(os.Interrupt) }
