@@ -11,13 +11,13 @@ import (
 	"path/filepath"
 	"runtime"
 	"slices"
+	"strconv"
 	"strings"
 	"time"
 
 	"github.com/spf13/cobra"
 
 	"pincer/decomp"
-	"pincer/instances"
 )
 
 // benchFlags are the flags of pincer bench.
@@ -347,5 +347,6 @@ func (r *benchResult) referenceText() string {
 	if !r.row.hasReference {
 		return "-"
 	}
-	return instances.FormatNumber(r.row.reference) + " (" + r.row.kind + ")"
+	// As written in the manifest: the reference's digits are the point.
+	return strconv.FormatFloat(r.row.reference, 'f', -1, 64) + " (" + r.row.kind + ")"
 }

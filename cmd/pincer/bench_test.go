@@ -560,3 +560,12 @@ func TestRunCBCSenseAndGuard(t *testing.T) {
 		t.Errorf("guard: %+v", o)
 	}
 }
+
+// TestPct: deviations print signed, and rounding noise prints as zero.
+func TestPct(t *testing.T) {
+	for v, want := range map[float64]string{1e-12: "0.000 %", -1e-12: "0.000 %", 0.00123: "+0.123 %", -0.5: "-50.000 %", math.NaN(): "-"} {
+		if got := pct(v); got != want {
+			t.Errorf("pct(%v) = %q, want %q", v, got, want)
+		}
+	}
+}

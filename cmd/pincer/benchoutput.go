@@ -89,12 +89,13 @@ func pct(v float64) string {
 	if math.IsNaN(v) || math.IsInf(v, 0) {
 		return "-"
 	}
-	s := strconv.FormatFloat(100*v, 'f', 3, 64)
-	if v > 0 {
+	s := strconv.FormatFloat(math.Abs(100*v), 'f', 3, 64)
+	switch {
+	case s == "0.000": // zero at the shown precision: no sign
+	case v > 0:
 		s = "+" + s
-	}
-	if s == "-0.000" {
-		s = "0.000"
+	default:
+		s = "-" + s
 	}
 	return s + " %"
 }
