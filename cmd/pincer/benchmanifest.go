@@ -80,7 +80,6 @@ func readManifest(r io.Reader, file string) (*manifest, error) {
 	cr := csv.NewReader(r)
 	cr.Comment = '#'
 	cr.FieldsPerRecord = -1 // checked here, with a clearer message
-	cr.ReuseRecord = false
 	fail := func(line, col, token int, expected string, err error) error {
 		return &instances.ParseError{File: file, Line: line, Column: col, Token: token, Expected: expected, Err: err}
 	}
