@@ -11,7 +11,6 @@ import (
 	"strconv"
 	"strings"
 	"text/tabwriter"
-	"time"
 
 	"github.com/schollz/progressbar/v3"
 	"golang.org/x/term"
@@ -52,7 +51,6 @@ func newBenchBar(w io.Writer, total int) *progressbar.ProgressBar {
 		progressbar.OptionSetWidth(30),
 		progressbar.OptionSetElapsedTime(true),
 		progressbar.OptionSetPredictTime(true),
-		progressbar.OptionThrottle(100*time.Millisecond),
 		progressbar.OptionSetRenderBlankState(true),
 	)
 }
