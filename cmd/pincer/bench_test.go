@@ -569,3 +569,23 @@ func TestPct(t *testing.T) {
 		}
 	}
 }
+
+// TestRunCBCInterrupted: Ctrl-C while the peer runs stops it promptly and
+// keeps what it printed.
+func TestRunCBCInterrupted(t *testing.T) {
+	if _, err := exec.LookPath("sh"); err != nil {
+		t.Skip("no shell for the stand-in solver")
+	}
+	ctx, cancel := context.WithCancel(context.Background())
+	defer cancel()
+	time.AfterFunc(time.Second, cancel)
+	progress := "Cbc0012I Integer solution of 2838 found by feasibility pump after 0 iterations and 0 nodes (2.29 seconds)"
+	start := time.Now()
+	o := runCBC(ctx, fakeCBC(t, progress, 60), loadGapTestdata(t, "min"), 30*time.Second, time.Second, 1)
+	if el := time.Since(start); el > 10*time.Second {
+		t.Errorf("the interrupted peer ran on for %v", el)
+	}
+	if o.status != "stopped" || o.note != "interrupted" || o.plan != 2838 || o.hasBound {
+		t.Errorf("interrupted: %+v", o)
+	}
+}
