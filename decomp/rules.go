@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"sort"
 )
 
 // Every rule here moves prices by a step along a direction and leaves the
@@ -157,6 +158,15 @@ func (m *Deflected) UnmarshalState(data []byte) error {
 	return nil
 }
 
+// PrimalAverager is a price rule that builds an approximate primal
+// (fractional) solution as it goes, such as [Volume]. The engine hands a
+// copy to every repair (RepairInput.Primal).
+type PrimalAverager interface {
+	// AveragePrimal returns a fresh copy of the averaged block primal
+	// answers, per block in block order, or nil before the first round.
+	AveragePrimal() [][]Entry
+}
+
 // Volume is the volume algorithm of Barahona & Anbil (2000). Besides the
 // prices it keeps a running average ū of the blocks' summed row use,
 // ū ← α·u + (1 − α)·ū, which approximates the use of a primal (fractional)
@@ -181,6 +191,68 @@ type Volume struct {
 	started     bool
 	avg         []float64 // ū − rhs
 	g           []float64
+	primal      [][]Entry // x̄ per block, sorted by variable
+	merge       []Entry
+}
+
+// primalFloor drops averaged primal values below it, keeping x̄ sparse.
+const primalFloor = 1e-6
+
+// averagePrimal folds this round's block answers into x̄ with weight α.
+func (m *Volume) averagePrimal(answers []Answer, alpha float64) {
+	if len(m.primal) != len(answers) {
+		m.primal = make([][]Entry, len(answers))
+		alpha = 1
+	}
+	for k, a := range answers {
+		cur := a.Primal
+		sorted := true
+		for i := 1; i < len(cur); i++ {
+			if cur[i].Index <= cur[i-1].Index {
+				sorted = false
+				break
+			}
+		}
+		if !sorted {
+			cur = append([]Entry(nil), cur...)
+			sort.Slice(cur, func(i, j int) bool { return cur[i].Index < cur[j].Index })
+		}
+		old := m.primal[k]
+		m.merge = m.merge[:0]
+		i, j := 0, 0
+		for i < len(old) || j < len(cur) {
+			var e Entry
+			switch {
+			case j == len(cur) || (i < len(old) && old[i].Index < cur[j].Index):
+				e = Entry{Index: old[i].Index, Value: (1 - alpha) * old[i].Value}
+				i++
+			case i == len(old) || cur[j].Index < old[i].Index:
+				e = Entry{Index: cur[j].Index, Value: alpha * cur[j].Value}
+				j++
+			default:
+				e = Entry{Index: cur[j].Index, Value: alpha*cur[j].Value + (1-alpha)*old[i].Value}
+				i++
+				j++
+			}
+			if math.Abs(e.Value) >= primalFloor {
+				m.merge = append(m.merge, e)
+			}
+		}
+		m.primal[k] = append(old[:0], m.merge...)
+	}
+}
+
+// AveragePrimal implements PrimalAverager: x̄, averaged with the same
+// weights as ū.
+func (m *Volume) AveragePrimal() [][]Entry {
+	if m.primal == nil {
+		return nil
+	}
+	out := make([][]Entry, len(m.primal))
+	for k, p := range m.primal {
+		out[k] = append([]Entry(nil), p...)
+	}
+	return out
 }
 
 // Init implements Method.
@@ -189,7 +261,7 @@ func (m *Volume) Init(_ Sense, rows []Row) {
 	if m.f <= 0 {
 		m.f = 0.1
 	}
-	m.alphaMax, m.red, m.started = 0.1, 0, false
+	m.alphaMax, m.red, m.started, m.primal = 0.1, 0, false, nil
 	m.avg = make([]float64, len(rows))
 	m.g = make([]float64, len(rows))
 }
@@ -219,6 +291,7 @@ func (m *Volume) Update(s *RoundState, prices []float64) (Step, error) {
 	dir := direction(s.Sense)
 	if !m.started {
 		copy(m.avg, m.g)
+		m.averagePrimal(s.Answers, 1)
 		m.started = true
 	} else {
 		// Colour of the round just evaluated (its prices were the trial).
@@ -247,6 +320,7 @@ func (m *Volume) Update(s *RoundState, prices []float64) (Step, error) {
 		for r := range m.avg {
 			m.avg[r] = alpha*m.g[r] + (1-alpha)*m.avg[r]
 		}
+		m.averagePrimal(s.Answers, alpha)
 	}
 	copy(prices, s.BestPrices)
 	copy(m.g, m.avg)
@@ -262,7 +336,7 @@ func (m *Volume) Update(s *RoundState, prices []float64) (Step, error) {
 	return Step{Length: t}, nil
 }
 
-const volumeStateTag = "volume01"
+const volumeStateTag = "volume02"
 
 // MarshalState implements StatefulMethod.
 func (m *Volume) MarshalState() ([]byte, error) {
@@ -275,13 +349,23 @@ func (m *Volume) MarshalState() ([]byte, error) {
 		started = 1
 	}
 	b = binary.LittleEndian.AppendUint64(b, started)
-	return appendFloats(b, m.avg), nil
+	b = appendFloats(b, m.avg)
+	b = binary.LittleEndian.AppendUint64(b, uint64(len(m.primal)))
+	for _, p := range m.primal {
+		b = binary.LittleEndian.AppendUint64(b, uint64(len(p)))
+		for _, e := range p {
+			b = binary.LittleEndian.AppendUint64(b, uint64(e.Index))
+			b = binary.LittleEndian.AppendUint64(b, math.Float64bits(e.Value))
+		}
+	}
+	return b, nil
 }
 
 // UnmarshalState implements StatefulMethod.
 func (m *Volume) UnmarshalState(data []byte) error {
 	rest, ok := cutTag(data, volumeStateTag)
-	if !ok || len(rest) != 32+8*len(m.avg) {
+	fixed := 32 + 8*len(m.avg)
+	if !ok || len(rest) < fixed+8 {
 		return errors.New("decomp: not a volume rule's state for this problem")
 	}
 	f := math.Float64frombits(binary.LittleEndian.Uint64(rest))
@@ -291,10 +375,44 @@ func (m *Volume) UnmarshalState(data []byte) error {
 	if !(f > 0) || math.IsInf(f, 0) || !(amax > 0) || amax > 1 || red > math.MaxInt32 || started > 1 {
 		return fmt.Errorf("decomp: volume state out of range (f %v, α max %v)", f, amax)
 	}
-	if err := readFloats(rest[32:], m.avg); err != nil {
+	if err := readFloats(rest[32:fixed], m.avg); err != nil {
 		return err
 	}
-	m.f, m.alphaMax, m.red, m.started = f, amax, int(red), started == 1
+	rest = rest[fixed:]
+	nb := binary.LittleEndian.Uint64(rest)
+	rest = rest[8:]
+	if nb > uint64(len(rest))/8 {
+		return errors.New("decomp: volume state truncated")
+	}
+	var primal [][]Entry
+	if nb > 0 {
+		primal = make([][]Entry, nb)
+	}
+	for k := range primal {
+		if len(rest) < 8 {
+			return errors.New("decomp: volume state truncated")
+		}
+		n := binary.LittleEndian.Uint64(rest)
+		rest = rest[8:]
+		if n > uint64(len(rest))/16 {
+			return errors.New("decomp: volume state truncated")
+		}
+		p := make([]Entry, n)
+		for i := range p {
+			idx := binary.LittleEndian.Uint64(rest)
+			v := math.Float64frombits(binary.LittleEndian.Uint64(rest[8:]))
+			rest = rest[16:]
+			if idx > math.MaxInt32 || math.IsNaN(v) || math.IsInf(v, 0) {
+				return errors.New("decomp: volume state holds a bad primal entry")
+			}
+			p[i] = Entry{Index: int(idx), Value: v}
+		}
+		primal[k] = p
+	}
+	if len(rest) != 0 {
+		return errors.New("decomp: volume state has trailing bytes")
+	}
+	m.f, m.alphaMax, m.red, m.started, m.primal = f, amax, int(red), started == 1, primal
 	return nil
 }
 
@@ -331,11 +449,12 @@ func readFloats(data []byte, into []float64) error {
 }
 
 // Rules lists the names NewMethod accepts; the first is the default.
-func Rules() []string { return []string{"subgradient", "deflected", "volume"} }
+func Rules() []string { return []string{"subgradient", "deflected", "volume", "boxstep"} }
 
 // NewMethod returns a fresh price-update rule by name (see Rules):
-// "subgradient" ([Subgradient]), "deflected" ([Deflected]) or "volume"
-// ([Volume]), each with its zero-value settings.
+// "subgradient" ([Subgradient]), "deflected" ([Deflected]), "volume"
+// ([Volume]) or "boxstep" ([Boxstep], for few coupling rows), each with
+// its zero-value settings.
 func NewMethod(name string) (Method, error) {
 	switch name {
 	case "subgradient", "":
@@ -344,6 +463,8 @@ func NewMethod(name string) (Method, error) {
 		return &Deflected{}, nil
 	case "volume":
 		return &Volume{}, nil
+	case "boxstep":
+		return &Boxstep{}, nil
 	}
 	return nil, fmt.Errorf("decomp: unknown price rule %q (want one of %v)", name, Rules())
 }

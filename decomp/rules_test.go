@@ -9,6 +9,7 @@ import (
 	"pgregory.net/rapid"
 
 	"pincer/decomp"
+	"pincer/subproblem"
 )
 
 // TestRulesKeepBoundsValid runs every price rule on random tiny problems
@@ -106,5 +107,51 @@ func TestRulesResumeExactly(t *testing.T) {
 func TestNewMethodRefusesUnknown(t *testing.T) {
 	if _, err := decomp.NewMethod("bisection"); err == nil {
 		t.Fatal("an unknown rule name was accepted")
+	}
+}
+
+// primalSpy records the primal average each repair gets.
+type primalSpy struct{ got [][][]decomp.Entry }
+
+func (s *primalSpy) Repair(_ context.Context, in *decomp.RepairInput) (*decomp.Plan, error) {
+	s.got = append(s.got, in.Primal)
+	return nil, nil
+}
+
+// TestVolumePrimalAverage: the volume rule's averaged block answers,
+// handed to the repairs, are convex combinations of block answers (each
+// choice block's values sum to 1), and the row use they imply is the
+// rule's own averaged use ū (both are averaged with the same weights).
+func TestVolumePrimalAverage(t *testing.T) {
+	p := manyBlocks(300, 12)
+	spy := &primalSpy{}
+	p.Repair = spy
+	v := &decomp.Volume{}
+	if _, err := decomp.Solve(context.Background(), p, decomp.Settings{Rounds: 40, Gap: -1, Method: v, RepairEvery: 5, Workers: 1}); err != nil {
+		t.Fatal(err)
+	}
+	if len(spy.got) == 0 || spy.got[len(spy.got)-1] == nil {
+		t.Fatal("repairs got no primal average")
+	}
+	last := v.AveragePrimal()
+	use := make([]float64, len(p.Rows))
+	for k, entries := range last {
+		sum := 0.0
+		c := p.Blocks[k].(*subproblem.Choice)
+		for _, e := range entries {
+			sum += e.Value
+			for _, u := range c.Options[e.Index].Use {
+				use[u.Index] += e.Value * u.Value
+			}
+		}
+		if math.Abs(sum-1) > 1e-4 {
+			t.Fatalf("block %d: averaged choice weights sum to %v", k, sum)
+		}
+	}
+	viol := v.AverageViolation()
+	for r := range use {
+		if d := use[r] - p.Rows[r].RHS - viol[r]; math.Abs(d) > 1e-3 {
+			t.Fatalf("row %d: use of x̄ minus rhs %v, rule's average %v", r, use[r]-p.Rows[r].RHS, viol[r])
+		}
 	}
 }

@@ -155,6 +155,23 @@ type Adjuster interface {
 	WithCapacity(resource string, capacity float64) (Model, error)
 }
 
+// Explainer is a model that adds lines of its own to the run summary, in
+// its users' words (for example "one more machine of class Press between
+// hours 40 and 52 would save about 310").
+type Explainer interface {
+	Explain(res *decomp.Result) ([]string, error)
+}
+
+// Artefacts is a model that writes files of its own after a run (a Gantt
+// chart, say), named by its options.
+type Artefacts interface {
+	// Outputs lists the files it will write, so that the command line can
+	// check before solving that they can be written.
+	Outputs() []string
+	// WriteArtefacts writes them from the run's result.
+	WriteArtefacts(res *decomp.Result) error
+}
+
 // Switcher is a model whose named parts (facility sites, say) can be
 // forced open or closed, for what-if questions.
 type Switcher interface {

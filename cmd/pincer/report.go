@@ -81,15 +81,41 @@ type report struct {
 	Seed          uint64 `json:"seed"`
 	Rule          string `json:"rule"` // the price-update rule
 	// WarmStart says where the starting prices came from (null: zero).
-	WarmStart *warmJSON      `json:"warm_start"`
-	Caution   string         `json:"caution"`
-	Rows      []rowJSON      `json:"rows"`
-	Family    map[string]any `json:"family"`
-	History   []historyJSON  `json:"history"`
+	WarmStart *warmJSON `json:"warm_start"`
+	// PrimalAverage is the volume rule's fractional primal solution, when
+	// asked for (--primal-average): per block, its variables at their
+	// averaged values, numbered as the family documents its blocks.
+	PrimalAverage []primalBlockJSON `json:"primal_average,omitempty"`
+	Caution       string            `json:"caution"`
+	Rows          []rowJSON         `json:"rows"`
+	Family        map[string]any    `json:"family"`
+	History       []historyJSON     `json:"history"`
 	// HistoryKept says which rounds history holds: "full" or "summary"
 	// (every improvement plus a thinned trace).
 	HistoryKept string `json:"history_kept"`
 	Plan        any    `json:"plan"`
+}
+
+type primalBlockJSON struct {
+	Block int           `json:"block"` // 1-based, in the family's block order
+	Vars  []primalJSONE `json:"vars"`
+}
+
+type primalJSONE struct {
+	Var   int  `json:"var"` // the block's own variable number (0-based)
+	Value rnum `json:"value"`
+}
+
+func primalJSON(p [][]decomp.Entry) []primalBlockJSON {
+	out := make([]primalBlockJSON, 0, len(p))
+	for k, entries := range p {
+		b := primalBlockJSON{Block: k + 1, Vars: make([]primalJSONE, len(entries))}
+		for i, e := range entries {
+			b.Vars[i] = primalJSONE{Var: e.Index, Value: rnum(e.Value)}
+		}
+		out = append(out, b)
+	}
+	return out
 }
 
 func buildReport(format, file string, index, workers int, seed uint64, full bool, m instances.Model, res *decomp.Result) (*report, error) {
@@ -289,6 +315,15 @@ func printSummary(w io.Writer, m instances.Model, integral bool, res *decomp.Res
 				flag = "  binding"
 			}
 			fmt.Fprintf(w, "  %-22s load %s of %s  price %s%s\n", r.Name, fmtNum(r.Load), fmtNum(r.Capacity), fmtNum(r.Price), flag)
+		}
+	}
+	if ex, ok := m.(instances.Explainer); ok {
+		lines, err := ex.Explain(res)
+		if err != nil {
+			return err
+		}
+		for _, l := range lines {
+			fmt.Fprintln(w, l)
 		}
 	}
 	fmt.Fprintln(w, caution)

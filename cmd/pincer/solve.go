@@ -39,6 +39,7 @@ type runFlags struct {
 	history     string
 	rule        string
 	plot        string
+	primal      bool
 	checkpoints checkpointFlags // solve only
 	warm        warmFlags       // solve only
 }
@@ -58,6 +59,7 @@ func (f *runFlags) register(cmd *cobra.Command) {
 	fl.IntVar(&f.repairEvery, "repair-every", 0, "repair every this many rounds (0: engine default; at least 0)")
 	fl.IntVar(&f.stall, "stall", 0, "stop after this many rounds without a better bound or plan (0: engine default, 300; at least 0)")
 	fl.StringVar(&f.rule, "rule", decomp.Rules()[0], "price-update rule: "+strings.Join(decomp.Rules(), ", "))
+	fl.BoolVar(&f.primal, "primal-average", false, "add the volume rule's averaged (fractional) block answers to the report as primal_average (needs --rule volume)")
 	fl.StringVar(&f.plot, "plot", "", "draw bound, plan value and the most binding rows' prices over time as SVG to this file")
 	fl.StringVar(&f.history, "history", "summary", "report history: summary (every improvement plus a thinned trace, at most 2000 rounds) or full")
 	for name, vals := range map[string][]string{"log-format": {"text", "json"}, "history": {"summary", "full"}, "rule": decomp.Rules()} {
@@ -80,6 +82,8 @@ func (f *runFlags) check() error {
 		return bad("history", f.history, "one of summary, full")
 	case !slices.Contains(decomp.Rules(), f.rule):
 		return bad("rule", f.rule, "one of "+strings.Join(decomp.Rules(), ", "))
+	case f.primal && f.rule != "volume":
+		return badInput(fmt.Errorf("--primal-average needs --rule volume (the rule that builds it), not %s", f.rule))
 	case f.workers < 1:
 		return bad("workers", f.workers, "at least 1")
 	case f.time < 0:
@@ -146,6 +150,13 @@ func newSolveCmd(chosen string) *cobra.Command {
 			if err := f.checkTables(m); err != nil {
 				return err
 			}
+			if a, ok := m.(instances.Artefacts); ok {
+				for _, path := range a.Outputs() {
+					if err := checkWritable("output", path); err != nil {
+						return err
+					}
+				}
+			}
 			_, err = solveModel(cmd.Context(), cmd.OutOrStdout(), cmd.ErrOrStderr(), &f, args[0], m)
 			return err
 		},
@@ -171,6 +182,9 @@ func solveModel(ctx context.Context, stdout, stderr io.Writer, f *runFlags, file
 	}
 	if settings.Method, err = decomp.NewMethod(f.rule); err != nil {
 		return nil, badInput(err)
+	}
+	if err := ruleFits(f.rule, p); err != nil {
+		return nil, err
 	}
 	var warm *warmJSON
 	if f.warm.path != "" {
@@ -217,10 +231,18 @@ func solveModel(ctx context.Context, stdout, stderr io.Writer, f *runFlags, file
 			return res, &exitError{code: exitInternal, err: err}
 		}
 	}
+	if a, ok := m.(instances.Artefacts); ok {
+		if err := a.WriteArtefacts(res); err != nil {
+			return res, &exitError{code: exitInternal, err: err}
+		}
+	}
 	if f.report != "" {
 		rep, err := buildReport(f.format, file, f.opts.values().Int("index"), f.workers, f.seed, f.history == "full", m, res)
 		if rep != nil {
 			rep.Rule, rep.WarmStart = f.rule, warm
+			if pa, ok := settings.Method.(decomp.PrimalAverager); ok && f.primal {
+				rep.PrimalAverage = primalJSON(pa.AveragePrimal())
+			}
 		}
 		if err != nil {
 			return res, &exitError{code: exitInternal, err: err}

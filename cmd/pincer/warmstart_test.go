@@ -78,3 +78,41 @@ func readJSON(t *testing.T, path string, v any) {
 		t.Fatalf("%s: %v", path, err)
 	}
 }
+
+// TestPrimalAverageReport: --primal-average with the volume rule puts one
+// entry per block in the report, each a convex combination (the choice
+// relaxation's blocks pick one agent per job); without the volume rule the
+// flag is refused.
+func TestPrimalAverageReport(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "r.json")
+	code, _, errs := runCLI(t, context.Background(), "solve", "--format", "gap-orlib", "--relax", "choice", "--rule", "volume",
+		"--primal-average", "--rounds", "100", "--quiet", "--report", path, testdata("gap-c-5x30.txt"))
+	if code != exitOK && code != exitNoPlan {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var r struct {
+		PrimalAverage []struct {
+			Block int `json:"block"`
+			Vars  []struct {
+				Value float64 `json:"value"`
+			} `json:"vars"`
+		} `json:"primal_average"`
+	}
+	readJSON(t, path, &r)
+	if len(r.PrimalAverage) != 30 {
+		t.Fatalf("%d blocks in primal_average, want 30 (one per job)", len(r.PrimalAverage))
+	}
+	for _, b := range r.PrimalAverage {
+		sum := 0.0
+		for _, v := range b.Vars {
+			sum += v.Value
+		}
+		if math.Abs(sum-1) > 1e-4 {
+			t.Fatalf("block %d: weights sum to %v", b.Block, sum)
+		}
+	}
+	code, _, errs = runCLI(t, context.Background(), "solve", "--format", "gap-orlib", "--primal-average", "--rounds", "3", testdata("gap-c-5x30.txt"))
+	if code != exitBadInput || !strings.Contains(errs, "needs --rule volume") {
+		t.Fatalf("--primal-average without volume: exit %d, %q", code, errs)
+	}
+}

@@ -192,6 +192,9 @@ func runWhatif(ctx context.Context, stdout, stderr io.Writer, f *whatifFlags, m 
 		if err != nil {
 			return nil, badInput(err)
 		}
+		if err := ruleFits(f.rule, p); err != nil {
+			return nil, err
+		}
 		res, err := decomp.Solve(ctx, p, s)
 		if err != nil {
 			return nil, &exitError{code: exitInternal, err: err}
@@ -285,6 +288,14 @@ func difference(a, b float64) float64 {
 		return 0
 	}
 	return d
+}
+
+// ruleFits refuses a price rule the problem is too large for.
+func ruleFits(rule string, p *decomp.Problem) error {
+	if rule == "boxstep" && len(p.Rows) > decomp.BoxstepMaxRows {
+		return badInput(fmt.Errorf("--rule boxstep: %s has %d coupling rows; the rule takes at most %d (its LP master grows with the rows): use subgradient, deflected or volume", p.Name, len(p.Rows), decomp.BoxstepMaxRows))
+	}
+	return nil
 }
 
 func planValue(res *decomp.Result) float64 {

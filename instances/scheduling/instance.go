@@ -1,6 +1,3 @@
-// Package scheduling is the shared-machine scheduling family: jobs with
-// integer processing times, weights, due dates and optional release dates
-// compete for machine classes of identical machines, without preemption.
 package scheduling
 
 import (
