@@ -262,6 +262,9 @@ func runBenchRow(ctx context.Context, f *benchFlags, rr resolvedRow, peerBin str
 	}
 	r.sense, r.size = m.Sense(), m.Size()
 	p, err := m.Problem()
+	if err == nil {
+		err = ruleFits(f.rule, p)
+	}
 	if err != nil {
 		r.status, r.note = "error", err.Error()
 		return r

@@ -589,3 +589,13 @@ func TestRunCBCInterrupted(t *testing.T) {
 		t.Errorf("interrupted: %+v", o)
 	}
 }
+
+// TestBenchRuleTooLarge: a price rule a row's problem is too large for is
+// that row's error, not the whole bench's.
+func TestBenchRuleTooLarge(t *testing.T) {
+	manifest := benchManifest(t, "d10200,gap-orlib,gap-d-10x200.txt,1,min,,,,")
+	code, out, _ := runCLI(t, context.Background(), "bench", manifest, "--benchmarks", "../../testdata", "--time", "1s", "--rule", "boxstep")
+	if code != exitBadInput || !strings.Contains(out, "--rule boxstep: ") || !strings.Contains(out, "coupling rows") {
+		t.Errorf("exit %d, table:\n%s", code, out)
+	}
+}
