@@ -342,8 +342,10 @@ func writeBenchChart(w io.Writer, title string, peer bool, rows []*benchResult) 
 			lo, hi = math.Min(lo, q.Y), math.Max(hi, q.Y)
 		}
 	}
-	if hi == lo {
-		hi = lo + 1
+	// At least 0.1 percentage points tall, so that rounding in the
+	// references (a few 1e-8 %) does not fill the chart.
+	if hi-lo < 0.1 {
+		hi = lo + 0.1
 	}
 	p.Y.Min, p.Y.Max = lo-0.05*(hi-lo), hi+0.25*(hi-lo)
 	p.X.Min, p.X.Max = -0.5, math.Max(0.5, float64(len(rows))-0.5)
