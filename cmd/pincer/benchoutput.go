@@ -226,8 +226,11 @@ func writeBenchCSV(w io.Writer, peer bool, rows []*benchResult) error {
 		if r.status != "error" || r.size != "" {
 			sense = r.sense.String()
 		}
-		rec := []string{r.row.name, r.row.format, r.row.file, r.row.index, sense, r.size,
-			num(r.row.reference, r.row.hasReference), r.row.kind, r.status}
+		ref := "" // as written in the manifest, every digit kept
+		if r.row.hasReference {
+			ref = strconv.FormatFloat(r.row.reference, 'f', -1, 64)
+		}
+		rec := []string{r.row.name, r.row.format, r.row.file, r.row.index, sense, r.size, ref, r.row.kind, r.status}
 		if r.status == "error" {
 			rec = append(rec, "", "", "", "", "", "", "")
 		} else {
