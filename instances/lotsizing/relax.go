@@ -18,6 +18,10 @@ type Options struct {
 	// Moves bounds the candidate moves evaluated by one repair's local
 	// search; 0 means 400 per item-period pair.
 	Moves int
+	// Evals bounds the setup patterns the first repair prices (later
+	// repairs price more, growing with the round); 0 means twice the
+	// number of periods.
+	Evals int
 }
 
 // overtimeCosts returns the per-period overtime cost (negative = none).
@@ -111,6 +115,10 @@ func NewProblem(in *Instance, opt Options) (*decomp.Problem, error) {
 	if moves <= 0 {
 		moves = 400 * len(in.Items) * T
 	}
-	p.Repair = &repairer{in: in, overtime: oc, moves: moves}
+	evals := opt.Evals
+	if evals <= 0 {
+		evals = 2 * T
+	}
+	p.Repair = &repairer{in: in, overtime: oc, moves: moves, evals: evals}
 	return p, nil
 }

@@ -3,7 +3,6 @@ package lotsizing
 import (
 	"context"
 	"math"
-	"math/rand/v2"
 
 	"pincer/decomp"
 )
@@ -20,10 +19,15 @@ type Schedule struct {
 	Cost       float64     `json:"cost"`
 }
 
+// repairer keeps scratch space of its own; the engine never runs two
+// repairs at once.
 type repairer struct {
 	in       *Instance
 	overtime []float64
 	moves    int
+	evals    int
+	pen      []float64 // cost per capacity unit beyond capacity (a large penalty where no overtime)
+	pat      *pattern
 }
 
 const tol = 1e-9
@@ -157,18 +161,23 @@ func (s *state) search(ctx context.Context, budget int) {
 func (r *repairer) Repair(ctx context.Context, in *decomp.RepairInput) (*decomp.Plan, error) {
 	inst := r.in
 	n, T := len(inst.Items), inst.Periods()
-	s := &state{in: inst, pen: make([]float64, T), x: make([][]float64, n), load: make([]float64, T)}
-	big := 1.0
-	for _, it := range inst.Items {
-		big += it.SetupCost + it.Holding*float64(T)
-	}
-	big *= 1000
-	for t := range s.pen {
-		s.pen[t] = r.overtime[t]
-		if s.pen[t] < 0 {
-			s.pen[t] = big
+	if r.pen == nil {
+		big := 1.0
+		for _, it := range inst.Items {
+			big += it.SetupCost + it.Holding*float64(T)
 		}
+		big *= 1000
+		r.pen = make([]float64, T)
+		for t := range r.pen {
+			r.pen[t] = r.overtime[t]
+			if r.pen[t] < 0 {
+				r.pen[t] = big
+			}
+		}
+		r.pat = newPattern(inst, r.pen)
 	}
+	// The relaxed plan, made capacity-feasible by priced lot moves.
+	s := &state{in: inst, pen: r.pen, x: make([][]float64, n), load: make([]float64, T)}
 	for i := 0; i < n; i++ {
 		s.x[i] = make([]float64, T)
 		for _, e := range in.Answers[i].Primal {
@@ -179,50 +188,28 @@ func (r *repairer) Repair(ctx context.Context, in *decomp.RepairInput) (*decomp.
 	}
 	s.recomputeLoad()
 	s.search(ctx, r.moves)
-	bestX, bestCost := s.clone(), s.total()
-	// The best plan so far is a second starting point.
+	// Its setup pattern, priced exactly and improved by descent.
+	budget := r.budget(in)
+	ps := newPatternSearch(r.pat, in.Seed)
+	ps.start(s.x)
+	ps.evals = budget / 4
+	ps.descend(ctx)
+	// The iterated search continues from the better of that pattern and
+	// the best plan so far, so the effort of earlier repairs carries over.
 	if in.Best != nil {
 		if b, ok := in.Best.Detail.(*Schedule); ok && len(b.Production) == n {
-			for i := range s.x {
-				copy(s.x[i], b.Production[i])
-			}
-			s.recomputeLoad()
-			if c := s.total(); c < bestCost-tol {
-				bestX, bestCost = s.clone(), c
+			keepY, keepX, keepCost := cloneB(ps.y), clone(ps.x), ps.cost
+			ps.start(b.Production)
+			if keepCost < ps.cost {
+				copyB(ps.y, keepY)
+				copyF(ps.x, keepX)
+				ps.cost = keepCost
 			}
 		}
 	}
-	// Iterated local search: kick the best plan by random lot moves and
-	// search again; a kick's outcome replaces the best only when cheaper.
-	kicks := 60
-	if in.Final {
-		kicks = 1000
-	}
-	rng := rand.New(rand.NewPCG(in.Seed, 1989))
-	for k := 0; k < kicks && ctx.Err() == nil; k++ {
-		for i := range s.x {
-			copy(s.x[i], bestX[i])
-		}
-		s.recomputeLoad()
-		for m := 0; m < 1+rng.IntN(3); m++ {
-			i, t, t2 := rng.IntN(n), rng.IntN(T), rng.IntN(T)
-			if t == t2 || s.x[i][t] <= tol {
-				continue
-			}
-			q := s.x[i][t]
-			if rng.IntN(2) == 0 {
-				q /= 2
-			}
-			if _, ok := s.delta(i, t, t2, q, s.stock(i)); ok {
-				s.apply(i, t, t2, q)
-			}
-		}
-		s.search(ctx, r.moves/4)
-		if c := s.total(); c < bestCost-tol {
-			bestX, bestCost = s.clone(), c
-		}
-	}
-	sch := scheduleOf(inst, bestX, r.overtime)
+	ps.evals += budget - budget/4
+	ps.iterate(ctx)
+	sch := scheduleOf(inst, ps.x, r.overtime)
 	if sch == nil {
 		return nil, nil
 	}
@@ -231,6 +218,19 @@ func (r *repairer) Repair(ctx context.Context, in *decomp.RepairInput) (*decomp.
 		use[t] = sch.Load[t] - sch.Overtime[t]
 	}
 	return &decomp.Plan{Value: sch.Cost, Use: use, Detail: sch}, nil
+}
+
+// budget is the number of setup patterns one repair prices: Options.Evals
+// (default twice the number of periods) times 1 + round/10, so that the
+// first rounds, which move the bound most, run fast and a long run spends
+// ever more of its time improving the best plan; the last repair prices
+// four times more.
+func (r *repairer) budget(in *decomp.RepairInput) int {
+	b := r.evals * (1 + min(in.Round, 100000)/10)
+	if in.Final {
+		b *= 4
+	}
+	return b
 }
 
 func (s *state) clone() [][]float64 {

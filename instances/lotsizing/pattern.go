@@ -1,0 +1,318 @@
+package lotsizing
+
+import (
+	"context"
+	"math"
+	"math/rand/v2"
+)
+
+// pattern prices setup patterns exactly. With the setups fixed, the
+// cheapest production plan is a minimum-cost flow (the transshipment view
+// of Hindi 1996): measured in capacity units, period t supplies its
+// capacity left after setup times (free) and any overtime (at its cost);
+// an item's lots are the nodes of its setups, each taking the net demand
+// of the periods up to its next setup, linked by stock arcs costing
+// h_i/b_i per capacity unit and period. Scaling item i by its unit time
+// b_i keeps the network pure, so unit times need no generalised flow.
+type pattern struct {
+	in       *Instance
+	pen      []float64   // cost per capacity unit beyond capacity
+	net      [][]float64 // demand net of the initial stock
+	first    []int       // per item: first period with net demand (T if none)
+	initHold float64     // holding cost of the initial stock, the same in every plan
+	big      float64     // more than any flow
+	g        netflow
+	prodArc  [][]int // scratch: production arc of each setup, -1 for none
+}
+
+func newPattern(in *Instance, pen []float64) *pattern {
+	n, T := len(in.Items), in.Periods()
+	p := &pattern{in: in, pen: pen, net: make([][]float64, n), first: make([]int, n), prodArc: make([][]int, n), big: 1}
+	for i, it := range in.Items {
+		p.net[i] = make([]float64, T)
+		p.prodArc[i] = make([]int, T)
+		p.first[i] = T
+		stock := it.InitialStock
+		for t, d := range in.Demand[i] {
+			use := math.Min(stock, d)
+			stock -= use
+			p.initHold += it.Holding * stock
+			p.net[i][t] = d - use
+			if p.net[i][t] > 0 && p.first[i] == T {
+				p.first[i] = t
+			}
+			p.big += it.UnitTime * p.net[i][t]
+		}
+	}
+	return p
+}
+
+// solve writes into x the cheapest production for the setups y and
+// returns its cost with every setup of y paid and excess capacity priced
+// at pen; +Inf when some net demand comes before every setup of its item.
+func (p *pattern) solve(y [][]bool, x [][]float64) float64 {
+	in := p.in
+	T := in.Periods()
+	for i := range y {
+		if p.first[i] < T {
+			s := 0
+			for s < T && !y[i][s] {
+				s++
+			}
+			if s > p.first[i] {
+				return math.Inf(1)
+			}
+		}
+	}
+	g := &p.g
+	g.reset(2 + T)
+	const src, sink = 0, 1
+	cost := p.initHold
+	for t := 0; t < T; t++ {
+		room := in.Capacity[t]
+		for i, it := range in.Items {
+			if y[i][t] {
+				room -= it.SetupTime
+				cost += it.SetupCost
+			}
+		}
+		if room > 0 {
+			g.arc(src, 2+t, room, 0)
+		} else {
+			cost += p.pen[t] * -room
+		}
+		g.arc(src, 2+t, p.big, p.pen[t])
+	}
+	need := 0.0
+	for i, it := range in.Items {
+		xi, ni, yi := x[i], p.net[i], y[i]
+		for t := range xi {
+			xi[t] = 0
+			p.prodArc[i][t] = -1
+		}
+		if it.UnitTime == 0 {
+			// No capacity used: every net demand comes from the latest setup.
+			s := -1
+			for t := 0; t < T; t++ {
+				if yi[t] {
+					s = t
+				}
+				if ni[t] > 0 {
+					xi[s] += ni[t]
+					cost += it.Holding * ni[t] * float64(t-s)
+				}
+			}
+			continue
+		}
+		prev, prevT := -1, -1
+		for t := 0; t < T; t++ {
+			if !yi[t] {
+				continue
+			}
+			v := len(g.head)
+			g.head = append(g.head, -1)
+			p.prodArc[i][t] = g.arc(2+t, v, p.big, 0)
+			if prev >= 0 {
+				g.arc(prev, v, p.big, it.Holding/it.UnitTime*float64(t-prevT))
+			}
+			d := 0.0
+			for u := t; u < T && (u == t || !yi[u]); u++ {
+				d += ni[u]
+				cost += it.Holding * ni[u] * float64(u-t)
+			}
+			if d > 0 {
+				g.arc(v, sink, it.UnitTime*d, 0)
+				need += it.UnitTime * d
+			}
+			prev, prevT = v, t
+		}
+	}
+	sent, fc := g.run(src, sink, need)
+	if sent < need-1e-7*math.Max(1, need) {
+		return math.Inf(1) // cannot happen: overtime arcs are unbounded
+	}
+	for i, it := range in.Items {
+		if it.UnitTime == 0 {
+			continue
+		}
+		for t, e := range p.prodArc[i] {
+			if e >= 0 {
+				if q := g.flowOn(e) / it.UnitTime; q > tol {
+					x[i][t] = q
+				}
+			}
+		}
+	}
+	return cost + fc
+}
+
+// patternSearch is a local search over setup patterns, each priced
+// exactly by pattern.solve: drop a setup, add one, or move one to the
+// neighbouring period; an iterated search kicks the best pattern with
+// seeded random moves. Effort is counted in pattern evaluations.
+type patternSearch struct {
+	p     *pattern
+	y     [][]bool
+	x, tx [][]float64
+	cost  float64
+	evals int
+	rng   *rand.Rand
+	order []int
+}
+
+func newPatternSearch(p *pattern, seed uint64) *patternSearch {
+	n, T := len(p.in.Items), p.in.Periods()
+	s := &patternSearch{p: p, y: make([][]bool, n), x: make([][]float64, n), tx: make([][]float64, n),
+		rng: rand.New(rand.NewPCG(seed, 1996)), order: make([]int, n*T)}
+	for i := range s.y {
+		s.y[i] = make([]bool, T)
+		s.x[i] = make([]float64, T)
+		s.tx[i] = make([]float64, T)
+	}
+	for k := range s.order {
+		s.order[k] = k
+	}
+	return s
+}
+
+// start sets the pattern to the setups of production x and prices it.
+func (s *patternSearch) start(x [][]float64) {
+	for i := range s.y {
+		for t := range s.y[i] {
+			s.y[i][t] = x[i][t] > tol
+		}
+	}
+	s.cost = s.p.solve(s.y, s.x)
+}
+
+func (s *patternSearch) better(c float64) bool {
+	if math.IsInf(s.cost, 1) {
+		return !math.IsInf(c, 1)
+	}
+	return c < s.cost-1e-9*math.Max(1, math.Abs(s.cost))
+}
+
+// try prices the current (already changed) pattern and keeps it when it
+// beats the current cost; it reports whether it did.
+func (s *patternSearch) try() bool {
+	s.evals--
+	c := s.p.solve(s.y, s.tx)
+	if s.better(c) {
+		s.cost = c
+		s.x, s.tx = s.tx, s.x
+		return true
+	}
+	return false
+}
+
+// descend runs first-improvement descent until no move improves or the
+// evaluation budget is spent.
+func (s *patternSearch) descend(ctx context.Context) {
+	T := s.p.in.Periods()
+	for improved := true; improved && s.evals > 0 && ctx.Err() == nil; {
+		improved = false
+		s.rng.Shuffle(len(s.order), func(a, b int) { s.order[a], s.order[b] = s.order[b], s.order[a] })
+		for _, k := range s.order {
+			if s.evals <= 0 {
+				return
+			}
+			if s.move(k/T, k%T) {
+				improved = true
+			}
+		}
+	}
+}
+
+// move tries the moves of setup (i,t) (add it, or drop it, or move it to
+// period t-1 or t+1) and keeps the first that improves.
+func (s *patternSearch) move(i, t int) bool {
+	T := s.p.in.Periods()
+	y := s.y[i]
+	if !y[t] {
+		y[t] = true
+		if s.try() {
+			return true
+		}
+		y[t] = false
+		return false
+	}
+	y[t] = false
+	if s.try() {
+		return true
+	}
+	for _, u := range [2]int{t - 1, t + 1} {
+		if u < 0 || u >= T || y[u] {
+			continue
+		}
+		y[u] = true
+		if s.try() {
+			return true
+		}
+		y[u] = false
+	}
+	y[t] = true
+	return false
+}
+
+// iterate is the iterated search from the current pattern: kick the best
+// pattern by two to four seeded random moves (add, drop or move a setup up
+// to two periods), descend, and keep the outcome when it is no worse (so
+// the search walks plateaus). It ends with the best pattern current.
+func (s *patternSearch) iterate(ctx context.Context) {
+	n, T := len(s.y), s.p.in.Periods()
+	bestY, bestX, bestCost := cloneB(s.y), clone(s.x), s.cost
+	for s.evals > 0 && ctx.Err() == nil {
+		for m := 2 + s.rng.IntN(3); m > 0; m-- {
+			i, t := s.rng.IntN(n), s.rng.IntN(T)
+			y := s.y[i]
+			if !y[t] {
+				y[t] = true
+				continue
+			}
+			y[t] = false
+			if u := t + s.rng.IntN(5) - 2; s.rng.IntN(2) == 0 && u >= 0 && u < T {
+				y[u] = true
+			}
+		}
+		s.evals--
+		s.cost = s.p.solve(s.y, s.x)
+		s.descend(ctx)
+		if s.cost <= bestCost {
+			bestCost = s.cost
+			copyB(bestY, s.y)
+			copyF(bestX, s.x)
+		} else {
+			s.cost = bestCost
+			copyB(s.y, bestY)
+			copyF(s.x, bestX)
+		}
+	}
+}
+
+func clone(x [][]float64) [][]float64 {
+	c := make([][]float64, len(x))
+	for i := range x {
+		c[i] = append([]float64(nil), x[i]...)
+	}
+	return c
+}
+
+func cloneB(y [][]bool) [][]bool {
+	c := make([][]bool, len(y))
+	for i := range y {
+		c[i] = append([]bool(nil), y[i]...)
+	}
+	return c
+}
+
+func copyF(dst, src [][]float64) {
+	for i := range src {
+		copy(dst[i], src[i])
+	}
+}
+
+func copyB(dst, src [][]bool) {
+	for i := range src {
+		copy(dst[i], src[i])
+	}
+}
