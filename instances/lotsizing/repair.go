@@ -174,7 +174,7 @@ func (r *repairer) Repair(ctx context.Context, in *decomp.RepairInput) (*decomp.
 				r.pen[t] = big
 			}
 		}
-		r.pat = newPattern(inst, r.pen)
+		r.pat = newPattern(inst, append([]float64(nil), r.pen...))
 	}
 	// The relaxed plan, made capacity-feasible by priced lot moves.
 	s := &state{in: inst, pen: r.pen, x: make([][]float64, n), load: make([]float64, T)}
@@ -191,9 +191,40 @@ func (r *repairer) Repair(ctx context.Context, in *decomp.RepairInput) (*decomp.
 	// Its setup pattern, priced exactly and improved by descent.
 	budget := r.budget(in)
 	ps := newPatternSearch(r.pat, in.Seed)
+	r.softPenalty(1)
 	ps.start(s.x)
 	ps.evals = budget / 4
 	ps.descend(ctx)
+	// Strategic oscillation: excess capacity where no overtime is allowed
+	// is priced softly first, so that the descent can trade it against
+	// setups and stock, then ever harder until none is left (or the
+	// penalty is the hard one). Until a first plan exists each step may
+	// go on longer: a plan found early steers the rest of the run.
+	for k := 1; k <= 12 && !r.feasible(ps.x) && ctx.Err() == nil; k++ {
+		r.softPenalty(math.Pow(3, float64(k)))
+		ps.cost = ps.p.solve(ps.y, ps.x)
+		if in.Best == nil {
+			ps.evals += 2 * n * T
+		} else {
+			ps.evals += budget / 16
+		}
+		ps.descend(ctx)
+	}
+	r.softPenalty(math.Inf(1))
+	ps.cost = ps.p.solve(ps.y, ps.x)
+	if in.Best == nil && !r.feasible(ps.x) {
+		// No plan yet: a forward construction with capacity look-ahead is
+		// the other start.
+		keepY, keepX, keepCost := cloneB(ps.y), clone(ps.x), ps.cost
+		ps.start(construct(inst, r.pat.net))
+		ps.evals += 2 * n * T
+		ps.descend(ctx)
+		if keepCost < ps.cost {
+			copyB(ps.y, keepY)
+			copyF(ps.x, keepX)
+			ps.cost = keepCost
+		}
+	}
 	// The iterated search continues from the better of that pattern and
 	// the best plan so far, so the effort of earlier repairs carries over.
 	if in.Best != nil {
@@ -218,6 +249,31 @@ func (r *repairer) Repair(ctx context.Context, in *decomp.RepairInput) (*decomp.
 		use[t] = sch.Load[t] - sch.Overtime[t]
 	}
 	return &decomp.Plan{Value: sch.Cost, Use: use, Detail: sch}, nil
+}
+
+// softPenalty prices excess capacity in the pattern search at factor
+// times the largest holding cost per capacity unit and period, capped at
+// the hard penalty, in periods without overtime; periods with overtime
+// keep its cost.
+func (r *repairer) softPenalty(factor float64) {
+	h := 0.0
+	for _, it := range r.in.Items {
+		if it.UnitTime > 0 {
+			h = math.Max(h, it.Holding/it.UnitTime)
+		}
+	}
+	for t, c := range r.pen {
+		r.pat.pen[t] = c
+		if r.overtime[t] < 0 {
+			r.pat.pen[t] = math.Min(c, factor*math.Max(h, 1e-3))
+		}
+	}
+}
+
+// feasible reports whether production x is a plan (no excess capacity
+// where no overtime is allowed).
+func (r *repairer) feasible(x [][]float64) bool {
+	return scheduleOf(r.in, x, r.overtime) != nil
 }
 
 // budget is the number of setup patterns one repair prices: Options.Evals
