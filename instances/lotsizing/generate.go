@@ -11,7 +11,10 @@ type GenerateConfig struct {
 	// Utilisation is the target share of capacity used by production and
 	// expected setups; 0 means 0.85.
 	Utilisation float64
-	Seed        uint64
+	// SetupTimeScale multiplies the setup times (10..50); 0 means 1.
+	// Scales above 1 with a utilisation near 1 give tight instances.
+	SetupTimeScale float64
+	Seed           uint64
 }
 
 // Generate builds an instance in the style of the Trigeiro, Thomas &
@@ -34,11 +37,18 @@ func Generate(c GenerateConfig) (*Instance, error) {
 	if !(u > 0 && u <= 1) {
 		return nil, fmt.Errorf("lotsizing generate: utilisation %v outside (0, 1]", u)
 	}
+	scale := c.SetupTimeScale
+	if scale == 0 {
+		scale = 1
+	}
+	if !(scale > 0 && scale <= 100) {
+		return nil, fmt.Errorf("lotsizing generate: setup time scale %v outside (0, 100]", scale)
+	}
 	r := rand.New(rand.NewPCG(c.Seed, 0x7733))
 	in := &Instance{Name: fmt.Sprintf("gen-%dx%d-%d", c.Items, c.Periods, c.Seed), Capacity: make([]float64, c.Periods)}
 	load := 0.0
 	for i := 0; i < c.Items; i++ {
-		it := Item{Name: fmt.Sprintf("item%d", i+1), UnitTime: 1, Holding: float64(80+r.IntN(41)) / 100, SetupTime: float64(10 + r.IntN(41)), SetupCost: float64(200 + r.IntN(801))}
+		it := Item{Name: fmt.Sprintf("item%d", i+1), UnitTime: 1, Holding: float64(80+r.IntN(41)) / 100, SetupTime: scale * float64(10+r.IntN(41)), SetupCost: float64(200 + r.IntN(801))}
 		d := make([]float64, c.Periods)
 		sum := 0.0
 		for t := range d {
