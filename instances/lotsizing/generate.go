@@ -25,7 +25,9 @@ type GenerateConfig struct {
 // costs 200..1000, one capacity for all periods set so that mean demand
 // plus one setup of every item every second period fills Utilisation of
 // it. Capacity is raised where needed so that cumulative demand always
-// fits.
+// fits (and in period 1 its setups too, since nothing can be made
+// earlier); setup times later are not checked, so a tight recipe may make
+// an instance without any plan.
 func Generate(c GenerateConfig) (*Instance, error) {
 	if c.Items < 1 || c.Periods < 1 {
 		return nil, fmt.Errorf("lotsizing generate: need items and periods >= 1, got %d x %d", c.Items, c.Periods)
@@ -65,7 +67,10 @@ func Generate(c GenerateConfig) (*Instance, error) {
 	cum, cumCap := 0.0, 0.0
 	for t := 0; t < c.Periods; t++ {
 		for i := range in.Items {
-			cum += in.Demand[i][t] + in.Items[i].SetupTime
+			cum += in.Demand[i][t]
+			if t == 0 && in.Demand[i][t] > 0 {
+				cum += in.Items[i].SetupTime // period 1 makes its own demand
+			}
 		}
 		cumCap += capacity
 		if cum > cumCap {
