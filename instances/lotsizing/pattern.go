@@ -17,6 +17,7 @@ import (
 type pattern struct {
 	in       *Instance
 	pen      []float64   // cost per capacity unit beyond capacity
+	overtime []float64   // the model's overtime cost per period, < 0 for none
 	net      [][]float64 // demand net of the initial stock
 	first    []int       // per item: first period with net demand (T if none)
 	initHold float64     // holding cost of the initial stock, the same in every plan
@@ -25,9 +26,9 @@ type pattern struct {
 	prodArc  [][]int // scratch: production arc of each setup, -1 for none
 }
 
-func newPattern(in *Instance, pen []float64) *pattern {
+func newPattern(in *Instance, pen, overtime []float64) *pattern {
 	n, T := len(in.Items), in.Periods()
-	p := &pattern{in: in, pen: pen, net: make([][]float64, n), first: make([]int, n), prodArc: make([][]int, n), big: 1}
+	p := &pattern{in: in, pen: pen, overtime: overtime, net: make([][]float64, n), first: make([]int, n), prodArc: make([][]int, n), big: 1}
 	for i, it := range in.Items {
 		p.net[i] = make([]float64, T)
 		p.prodArc[i] = make([]int, T)
@@ -220,6 +221,17 @@ func (s *patternSearch) descend(ctx context.Context) {
 				improved = true
 			}
 		}
+		if !improved && s.overloaded() {
+			// Stuck over capacity: try giving setups to other items.
+			for _, k := range s.order {
+				if s.evals <= 0 {
+					return
+				}
+				if s.swap(k/T, k%T) {
+					improved = true
+				}
+			}
+		}
 	}
 }
 
@@ -251,6 +263,51 @@ func (s *patternSearch) move(i, t int) bool {
 		y[u] = false
 	}
 	y[t] = true
+	return false
+}
+
+// overloaded reports whether the current plan exceeds capacity where no
+// overtime is allowed (hard[t] < 0).
+func (s *patternSearch) overloaded() bool {
+	in := s.p.in
+	for t := range in.Capacity {
+		if s.p.overtime[t] >= 0 {
+			continue
+		}
+		load := 0.0
+		for i, it := range in.Items {
+			if s.y[i][t] {
+				load += it.SetupTime + it.UnitTime*s.x[i][t]
+			}
+		}
+		if load > in.Capacity[t]*(1+1e-9)+1e-9 {
+			return true
+		}
+	}
+	return false
+}
+
+// swap tries to give the setup (i,t) to another item in the same period
+// (drop i's setup, set up j), keeping the first that improves. Only used
+// while the plan is over capacity: with large setup times the slack of
+// earlier periods is often too small for one more setup, but not for one
+// setup in place of another.
+func (s *patternSearch) swap(i, t int) bool {
+	if !s.y[i][t] {
+		return false
+	}
+	s.y[i][t] = false
+	for j := range s.y {
+		if j == i || s.y[j][t] || s.evals <= 0 {
+			continue
+		}
+		s.y[j][t] = true
+		if s.try() {
+			return true
+		}
+		s.y[j][t] = false
+	}
+	s.y[i][t] = true
 	return false
 }
 

@@ -23,11 +23,11 @@ func BenchmarkPatternSolve(b *testing.B) {
 			if err != nil {
 				b.Fatal(err)
 			}
-			pen := make([]float64, in.Periods())
+			pen, overtime := make([]float64, in.Periods()), make([]float64, in.Periods())
 			for t := range pen {
-				pen[t] = 1e6
+				pen[t], overtime[t] = 1e6, -1
 			}
-			p := newPattern(in, pen)
+			p := newPattern(in, pen, overtime)
 			s := newPatternSearch(p, 1)
 			for i := range s.y {
 				for t := range s.y[i] {

@@ -26,7 +26,7 @@ func TestPatternSolveMatchesLP(t *testing.T) {
 				pen[t] = overtime[t]
 			}
 		}
-		p := newPattern(in, pen)
+		p := newPattern(in, pen, overtime)
 		s := newPatternSearch(p, 1)
 		n := len(in.Items)
 		for mask := 0; mask < 1<<(n*T); mask++ {

@@ -174,7 +174,7 @@ func (r *repairer) Repair(ctx context.Context, in *decomp.RepairInput) (*decomp.
 				r.pen[t] = big
 			}
 		}
-		r.pat = newPattern(inst, append([]float64(nil), r.pen...))
+		r.pat = newPattern(inst, append([]float64(nil), r.pen...), r.overtime)
 	}
 	// The relaxed plan, made capacity-feasible by priced lot moves.
 	s := &state{in: inst, pen: r.pen, x: make([][]float64, n), load: make([]float64, T)}
