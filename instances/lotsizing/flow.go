@@ -18,6 +18,9 @@ type netflow struct {
 	queue      []int32
 	pq         distHeap
 	capEps     float64
+	// work counts the arcs scanned, a measure of effort that does not
+	// depend on the clock.
+	work int
 }
 
 func (g *netflow) reset(nodes int) {
@@ -117,6 +120,7 @@ func (g *netflow) run(s, t int, need float64) (sent, total float64) {
 				continue
 			}
 			for e := g.head[u]; e >= 0; e = g.next[e] {
+				g.work++
 				if g.capa[e] <= g.capEps {
 					continue
 				}
@@ -178,6 +182,7 @@ func (g *netflow) levels(s, t int) bool {
 	for k := 0; k < len(g.queue); k++ {
 		u := int(g.queue[k])
 		for e := g.head[u]; e >= 0; e = g.next[e] {
+			g.work++
 			v := g.to[e]
 			if g.level[v] < 0 && g.admissible(e, u) {
 				g.level[v] = g.level[u] + 1
@@ -196,6 +201,7 @@ func (g *netflow) push(u, t int, f float64) float64 {
 	}
 	for ; g.iter[u] >= 0; g.iter[u] = g.next[g.iter[u]] {
 		e := g.iter[u]
+		g.work++
 		v := int(g.to[e])
 		if g.level[v] != g.level[u]+1 || !g.admissible(e, u) {
 			continue

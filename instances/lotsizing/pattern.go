@@ -150,13 +150,14 @@ func (p *pattern) solve(y [][]bool, x [][]float64) float64 {
 // patternSearch is a local search over setup patterns, each priced
 // exactly by pattern.solve: drop a setup, add one, or move one to the
 // neighbouring period; an iterated search kicks the best pattern with
-// seeded random moves. Effort is counted in pattern evaluations.
+// seeded random moves. Effort is counted in the work of the flow solves,
+// so that it is reproducible and scales with the instance.
 type patternSearch struct {
 	p     *pattern
 	y     [][]bool
 	x, tx [][]float64
 	cost  float64
-	evals int
+	work  int // effort left, in arcs scanned by the flow solves (see netflow.work)
 	rng   *rand.Rand
 	order []int
 }
@@ -174,6 +175,14 @@ func newPatternSearch(p *pattern, seed uint64) *patternSearch {
 		s.order[k] = k
 	}
 	return s
+}
+
+// price solves pattern y into x and charges its work (at least one unit).
+func (s *patternSearch) price(y [][]bool, x [][]float64) float64 {
+	w := s.p.g.work
+	c := s.p.solve(y, x)
+	s.work -= 1 + s.p.g.work - w
+	return c
 }
 
 // start sets the pattern to the setups of production x and prices it.
@@ -196,8 +205,7 @@ func (s *patternSearch) better(c float64) bool {
 // try prices the current (already changed) pattern and keeps it when it
 // beats the current cost; it reports whether it did.
 func (s *patternSearch) try() bool {
-	s.evals--
-	c := s.p.solve(s.y, s.tx)
+	c := s.price(s.y, s.tx)
 	if s.better(c) {
 		s.cost = c
 		s.x, s.tx = s.tx, s.x
@@ -210,11 +218,11 @@ func (s *patternSearch) try() bool {
 // evaluation budget is spent.
 func (s *patternSearch) descend(ctx context.Context) {
 	T := s.p.in.Periods()
-	for improved := true; improved && s.evals > 0 && ctx.Err() == nil; {
+	for improved := true; improved && s.work > 0 && ctx.Err() == nil; {
 		improved = false
 		s.rng.Shuffle(len(s.order), func(a, b int) { s.order[a], s.order[b] = s.order[b], s.order[a] })
 		for _, k := range s.order {
-			if s.evals <= 0 {
+			if s.work <= 0 {
 				return
 			}
 			if s.move(k/T, k%T) {
@@ -224,7 +232,7 @@ func (s *patternSearch) descend(ctx context.Context) {
 		if !improved && s.overloaded() {
 			// Stuck over capacity: try giving setups to other items.
 			for _, k := range s.order {
-				if s.evals <= 0 {
+				if s.work <= 0 {
 					return
 				}
 				if s.swap(k/T, k%T) {
@@ -298,7 +306,7 @@ func (s *patternSearch) swap(i, t int) bool {
 	}
 	s.y[i][t] = false
 	for j := range s.y {
-		if j == i || s.y[j][t] || s.evals <= 0 {
+		if j == i || s.y[j][t] || s.work <= 0 {
 			continue
 		}
 		s.y[j][t] = true
@@ -318,7 +326,7 @@ func (s *patternSearch) swap(i, t int) bool {
 func (s *patternSearch) iterate(ctx context.Context) {
 	n, T := len(s.y), s.p.in.Periods()
 	bestY, bestX, bestCost := cloneB(s.y), clone(s.x), s.cost
-	for s.evals > 0 && ctx.Err() == nil {
+	for s.work > 0 && ctx.Err() == nil {
 		for m := 2 + s.rng.IntN(3); m > 0; m-- {
 			i, t := s.rng.IntN(n), s.rng.IntN(T)
 			y := s.y[i]
@@ -331,8 +339,7 @@ func (s *patternSearch) iterate(ctx context.Context) {
 				y[u] = true
 			}
 		}
-		s.evals--
-		s.cost = s.p.solve(s.y, s.x)
+		s.cost = s.price(s.y, s.x)
 		s.descend(ctx)
 		if s.cost <= bestCost {
 			bestCost = s.cost

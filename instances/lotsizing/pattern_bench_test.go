@@ -41,3 +41,4 @@ func BenchmarkPatternSolve(b *testing.B) {
 		})
 	}
 }
+

@@ -18,10 +18,9 @@ type Options struct {
 	// Moves bounds the candidate moves evaluated by one repair's local
 	// search; 0 means 400 per item-period pair.
 	Moves int
-	// Evals bounds the setup patterns the first repair prices (later
-	// repairs price more, growing with the round); 0 means twice the
-	// number of periods.
-	Evals int
+	// Effort scales the work of the repair's setup-pattern search (see
+	// repairer.budget); 0 means 1.
+	Effort float64
 }
 
 // overtimeCosts returns the per-period overtime cost (negative = none).
@@ -115,10 +114,13 @@ func NewProblem(in *Instance, opt Options) (*decomp.Problem, error) {
 	if moves <= 0 {
 		moves = 400 * len(in.Items) * T
 	}
-	evals := opt.Evals
-	if evals <= 0 {
-		evals = 2 * T
+	effort := opt.Effort
+	if effort <= 0 {
+		effort = 1
 	}
-	p.Repair = &repairer{in: in, overtime: oc, moves: moves, evals: evals}
+	// About the work of five rounds: a fixed part for the engine's round
+	// overhead and n·T² for the blocks' dynamic programs.
+	base := int(effort * (200000 + 3*float64(len(in.Items)*T*T)))
+	p.Repair = &repairer{in: in, overtime: oc, moves: moves, work: base, firstPlanWork: 6 * base}
 	return p, nil
 }

@@ -25,9 +25,12 @@ type repairer struct {
 	in       *Instance
 	overtime []float64
 	moves    int
-	evals    int
-	pen      []float64 // cost per capacity unit beyond capacity (a large penalty where no overtime)
-	pat      *pattern
+	work     int // pattern-search work of an early repair (see budget)
+	// firstPlanWork is the extra work a repair may spend on each attempt
+	// to remove excess capacity while the run has no plan.
+	firstPlanWork int
+	pen           []float64 // cost per capacity unit beyond capacity (a large penalty where no overtime)
+	pat           *pattern
 }
 
 const tol = 1e-9
@@ -193,7 +196,7 @@ func (r *repairer) Repair(ctx context.Context, in *decomp.RepairInput) (*decomp.
 	ps := newPatternSearch(r.pat, in.Seed)
 	r.softPenalty(1)
 	ps.start(s.x)
-	ps.evals = budget / 4
+	ps.work = budget / 4
 	ps.descend(ctx)
 	// Strategic oscillation: excess capacity where no overtime is allowed
 	// is priced softly first, so that the descent can trade it against
@@ -202,22 +205,22 @@ func (r *repairer) Repair(ctx context.Context, in *decomp.RepairInput) (*decomp.
 	// go on longer: a plan found early steers the rest of the run.
 	for k := 1; k <= 12 && !r.feasible(ps.x) && ctx.Err() == nil; k++ {
 		r.softPenalty(math.Pow(3, float64(k)))
-		ps.cost = ps.p.solve(ps.y, ps.x)
+		ps.cost = ps.price(ps.y, ps.x)
 		if in.Best == nil {
-			ps.evals += 2 * n * T
+			ps.work += r.firstPlanWork
 		} else {
-			ps.evals += budget / 16
+			ps.work += budget / 16
 		}
 		ps.descend(ctx)
 	}
 	r.softPenalty(math.Inf(1))
-	ps.cost = ps.p.solve(ps.y, ps.x)
+	ps.cost = ps.price(ps.y, ps.x)
 	if in.Best == nil && !r.feasible(ps.x) {
 		// No plan yet: a forward construction with capacity look-ahead is
 		// the other start.
 		keepY, keepX, keepCost := cloneB(ps.y), clone(ps.x), ps.cost
 		ps.start(construct(inst, r.pat.net))
-		ps.evals += 2 * n * T
+		ps.work += r.firstPlanWork
 		ps.descend(ctx)
 		if keepCost < ps.cost {
 			copyB(ps.y, keepY)
@@ -238,7 +241,7 @@ func (r *repairer) Repair(ctx context.Context, in *decomp.RepairInput) (*decomp.
 			}
 		}
 	}
-	ps.evals += budget - budget/4
+	ps.work += budget - budget/4
 	ps.iterate(ctx)
 	sch := scheduleOf(inst, ps.x, r.overtime)
 	if sch == nil {
@@ -276,13 +279,14 @@ func (r *repairer) feasible(x [][]float64) bool {
 	return scheduleOf(r.in, x, r.overtime) != nil
 }
 
-// budget is the number of setup patterns one repair prices: Options.Evals
-// (default twice the number of periods) times 1 + round/10, so that the
-// first rounds, which move the bound most, run fast and a long run spends
-// ever more of its time improving the best plan; the last repair prices
-// four times more.
+// budget is the work (arcs scanned by flow solves, see netflow.work) of
+// one repair's pattern search: a base of about the work of the five rounds
+// between repairs (200000 plus 3·n·T², times Options.Effort), times
+// 1 + round/10, so that the first rounds, which move the bound most, run
+// fast and a long run spends ever more of its time improving the best
+// plan; the last repair does four times more.
 func (r *repairer) budget(in *decomp.RepairInput) int {
-	b := r.evals * (1 + min(in.Round, 100000)/10)
+	b := r.work * (1 + min(in.Round, 100000)/10)
 	if in.Final {
 		b *= 4
 	}
