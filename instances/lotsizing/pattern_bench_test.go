@@ -41,4 +41,3 @@ func BenchmarkPatternSolve(b *testing.B) {
 		})
 	}
 }
-
