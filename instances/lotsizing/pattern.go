@@ -319,6 +319,70 @@ func (s *patternSearch) swap(i, t int) bool {
 	return false
 }
 
+// replan sets item i's setups to the optimum of its own lot-sizing
+// problem with the other items' loads fixed: the Wagner-Whitin recursion
+// over lots covering consecutive net demand, each lot paying its setup,
+// its holding and the excess of its load over the capacity the other
+// items leave, at the current penalty. Zero-inventory lots are not always
+// optimal under capacity limits, so this is a kick of the iterated search
+// (the flow then sets the quantities of all items), not an exact move.
+func (s *patternSearch) replan(i int) {
+	in := s.p.in
+	T := in.Periods()
+	it := &in.Items[i]
+	net := s.p.net[i]
+	room := make([]float64, T)
+	for t := range room {
+		room[t] = in.Capacity[t]
+		for j, jt := range in.Items {
+			if j != i && s.y[j][t] {
+				room[t] -= jt.SetupTime + jt.UnitTime*s.x[j][t]
+			}
+		}
+	}
+	f := make([]float64, T+1)
+	from := make([]int, T+1)
+	for k := 1; k <= T; k++ {
+		f[k], from[k] = math.Inf(1), -2
+		if net[k-1] == 0 {
+			f[k], from[k] = f[k-1], -1
+		}
+	}
+	for j := 0; j < T; j++ {
+		if math.IsInf(f[j], 1) {
+			continue
+		}
+		hold, q := 0.0, 0.0
+		for k := j + 1; k <= T; k++ {
+			u := k - 1
+			q += net[u]
+			hold += it.Holding * net[u] * float64(u-j)
+			c := f[j] + it.SetupCost + hold
+			if e := it.SetupTime + it.UnitTime*q - room[j]; e > 0 {
+				c += s.p.pen[j] * e
+			}
+			if c < f[k] {
+				f[k], from[k] = c, j
+			}
+		}
+	}
+	for t := range s.y[i] {
+		s.y[i][t] = false
+	}
+	for k := T; k > 0; {
+		j := from[k]
+		if j == -1 {
+			k--
+			continue
+		}
+		if j < 0 {
+			return // cannot happen: a lot from period 0 covers everything
+		}
+		s.y[i][j] = true
+		k = j
+	}
+}
+
 // iterate is the iterated search from the current pattern: kick the best
 // pattern by two to four seeded random moves (add, drop or move a setup up
 // to two periods), descend, and keep the outcome when it is no worse (so
@@ -327,7 +391,12 @@ func (s *patternSearch) iterate(ctx context.Context) {
 	n, T := len(s.y), s.p.in.Periods()
 	bestY, bestX, bestCost := cloneB(s.y), clone(s.x), s.cost
 	for s.work > 0 && ctx.Err() == nil {
-		for m := 2 + s.rng.IntN(3); m > 0; m-- {
+		m := 2 + s.rng.IntN(3)
+		if s.rng.IntN(2) == 0 {
+			s.replan(s.rng.IntN(n))
+			m = 1
+		}
+		for ; m > 0; m-- {
 			i, t := s.rng.IntN(n), s.rng.IntN(T)
 			y := s.y[i]
 			if !y[t] {
