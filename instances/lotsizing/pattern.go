@@ -368,6 +368,7 @@ func (s *patternSearch) replan(i int) {
 	}
 	for t := range s.y[i] {
 		s.y[i][t] = false
+		s.x[i][t] = 0
 	}
 	for k := T; k > 0; {
 		j := from[k]
@@ -379,8 +380,32 @@ func (s *patternSearch) replan(i int) {
 			return // cannot happen: a lot from period 0 covers everything
 		}
 		s.y[i][j] = true
+		for u := j; u < k; u++ {
+			s.x[i][j] += net[u]
+		}
 		k = j
 	}
+}
+
+// sweep re-plans every item once, in seeded random order, each against
+// the loads the others have at that moment (block coordinate descent over
+// items), prices the resulting pattern and keeps it when it improves. Its
+// cost is n dynamic programs and one flow solve, so it suits large
+// instances, where one descent pass prices n·T patterns.
+func (s *patternSearch) sweep() bool {
+	n := len(s.y)
+	keepY, keepX, keepCost := cloneB(s.y), clone(s.x), s.cost
+	for _, i := range s.rng.Perm(n) {
+		s.replan(i)
+	}
+	if c := s.price(s.y, s.x); s.better(c) || math.IsInf(keepCost, 1) && !math.IsInf(c, 1) {
+		s.cost = c
+		return true
+	}
+	copyB(s.y, keepY)
+	copyF(s.x, keepX)
+	s.cost = keepCost
+	return false
 }
 
 // iterate is the iterated search from the current pattern: kick the best

@@ -16,7 +16,7 @@ type Options struct {
 	// cost of its own exceed its capacity at this cost per capacity unit.
 	OvertimeCost float64
 	// Moves bounds the candidate moves evaluated by one repair's local
-	// search; 0 means 400 per item-period pair.
+	// search; 0 means 20 per item-period pair.
 	Moves int
 	// Effort scales the work of the repair's setup-pattern search (see
 	// repairer.budget); 0 means 1.
@@ -112,7 +112,7 @@ func NewProblem(in *Instance, opt Options) (*decomp.Problem, error) {
 	}
 	moves := opt.Moves
 	if moves <= 0 {
-		moves = 400 * len(in.Items) * T
+		moves = 20 * len(in.Items) * T
 	}
 	effort := opt.Effort
 	if effort <= 0 {

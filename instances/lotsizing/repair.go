@@ -215,6 +215,10 @@ func (r *repairer) Repair(ctx context.Context, in *decomp.RepairInput) (*decomp.
 	}
 	r.softPenalty(math.Inf(1))
 	ps.cost = ps.price(ps.y, ps.x)
+	// Re-plan every item against the others' loads while that improves
+	// (cheap: one flow solve per sweep).
+	for k := 0; k < 4 && ps.sweep(); k++ {
+	}
 	if in.Best == nil && !r.feasible(ps.x) {
 		// No plan yet: a forward construction with capacity look-ahead is
 		// the other start.
@@ -240,6 +244,8 @@ func (r *repairer) Repair(ctx context.Context, in *decomp.RepairInput) (*decomp.
 				ps.cost = keepCost
 			}
 		}
+	}
+	for k := 0; k < 4 && ps.sweep(); k++ {
 	}
 	ps.work += budget - budget/4
 	ps.iterate(ctx)
