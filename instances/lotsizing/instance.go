@@ -32,13 +32,15 @@
 // between allows, judged by its exact cost change. Its setup pattern then
 // enters a local search over setup patterns in which every pattern is
 // priced exactly: with the setups fixed, the cheapest quantities are a
-// minimum-cost flow (the transshipment view of Hindi 1996; capacity units,
+// minimum-cost flow (the transshipment view of Hindi 1996, cited from
+// memory; capacity units,
 // so unit times keep the network pure), with excess capacity priced at the
 // overtime cost or, where none is allowed, at a penalty that starts soft
 // and hardens (strategic oscillation) until the excess is gone. Moves add,
 // drop or shift a setup; while stuck over capacity, a period's setup may
 // pass to another item. While no plan exists, a forward construction with
-// a capacity look-ahead (Dixon & Silver 1981 style) is a second start. An
+// a capacity look-ahead (in the style of Dixon & Silver 1981, cited from
+// memory) is a second start. An
 // iterated search then continues from the best plan found so far: kicks
 // are a few random setup moves or the re-planning of one item by the
 // Wagner-Whitin recursion with the other items' loads fixed. The effort of
