@@ -7,8 +7,8 @@ import (
 )
 
 // pattern prices setup patterns exactly. With the setups fixed, the
-// cheapest production plan is a minimum-cost flow (the transshipment view
-// of Hindi 1996): measured in capacity units, period t supplies its
+// cheapest production plan is a minimum-cost flow (the transshipment view,
+// after Hindi 1996 as we remember it): measured in capacity units, period t supplies its
 // capacity left after setup times (free) and any overtime (at its cost);
 // an item's lots are the nodes of its setups, each taking the net demand
 // of the periods up to its next setup, linked by stock arcs costing
