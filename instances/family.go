@@ -78,6 +78,13 @@ type Verifier interface {
 	Verify(r io.Reader, file string) (Verdict, error)
 }
 
+// NoPlanNoter says, in the family's words, what a run without a plan
+// means (for example which option always gives one); the command line
+// adds it to its no-plan message.
+type NoPlanNoter interface {
+	NoPlanNote() string
+}
+
 // MPSExporter writes the full model in free MPS.
 type MPSExporter interface {
 	WriteMPS(w io.Writer) error

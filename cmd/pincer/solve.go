@@ -261,7 +261,11 @@ func solveModel(ctx context.Context, stdout, stderr io.Writer, f *runFlags, file
 	case res.Status == decomp.Interrupted:
 		return res, &exitError{code: exitInterrupted, err: errors.New("interrupted; best plan and report written")}
 	case res.Plan == nil:
-		return res, &exitError{code: exitNoPlan, err: errors.New("no feasible plan found (the bound and report are still valid)")}
+		msg := "no feasible plan found (the bound and report are still valid)"
+		if nn, ok := m.(instances.NoPlanNoter); ok {
+			msg += "; " + nn.NoPlanNote()
+		}
+		return res, &exitError{code: exitNoPlan, err: errors.New(msg)}
 	}
 	return res, nil
 }

@@ -20,6 +20,17 @@ func bruteOptimum(in *Instance, overtime []float64) float64 {
 	best := math.Inf(1)
 	for mask := 0; mask < 1<<(n*T); mask++ {
 		on := func(i, t int) bool { return mask>>(i*T+t)&1 == 1 }
+		best = math.Min(best, patternOptimum(in, overtime, on))
+	}
+	return best
+}
+
+// patternOptimum is the cheapest plan with exactly the setups on (setup
+// costs paid for every setup), by gonum's simplex on the production LP;
+// +Inf when the LP is infeasible.
+func patternOptimum(in *Instance, overtime []float64, on func(i, t int) bool) float64 {
+	n, T := len(in.Items), in.Periods()
+	{
 		// columns: x_it (only when set up), s_it, slack_t, overtime_t
 		type col struct {
 			cost float64
@@ -76,11 +87,10 @@ func bruteOptimum(in *Instance, overtime []float64) float64 {
 		}
 		v, _, err := lp.Simplex(c, A, b, 1e-10, nil)
 		if err != nil {
-			continue // infeasible pattern (gonum reports it as an error)
+			return math.Inf(1) // infeasible pattern (gonum reports it as an error)
 		}
-		best = math.Min(best, v+setupCost)
+		return v + setupCost
 	}
-	return best
 }
 
 func tinyInstance(r *rand.Rand, overtime bool) *Instance {

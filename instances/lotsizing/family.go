@@ -20,6 +20,8 @@ var (
 	_ instances.Model       = (*Model)(nil)
 	_ instances.PlanWriter  = (*Model)(nil)
 	_ instances.MPSExporter = (*Model)(nil)
+	_ instances.Verifier    = (*Model)(nil)
+	_ instances.Generator   = Family{}
 )
 
 // Name returns "lotsizing".
@@ -202,6 +204,58 @@ func (m *Model) Resources(res *decomp.Result) ([]instances.Resource, error) {
 		}
 	}
 	return out, nil
+}
+
+// Verify reads a schedule.csv plan (see [ReadScheduleCSV]) and checks it
+// with [Check], at the overtime costs of the model (the input's and
+// --overtime-cost).
+func (m *Model) Verify(r io.Reader, file string) (instances.Verdict, error) {
+	pf, err := ReadScheduleCSV(r, file, m.In)
+	if err != nil {
+		return instances.Verdict{}, err
+	}
+	return Check(m.In, pf, overtimeCosts(m.In, m.Opt)), nil
+}
+
+// NoPlanNote says what a run without a plan means for lot sizing.
+func (m *Model) NoPlanNote() string {
+	if m.overtimeAllowed() {
+		return "no plan was found within the limits"
+	}
+	return "no plan without overtime was found (capacity may be too tight for the setups, or the search too short); " +
+		"--overtime-cost C lets periods exceed capacity at cost C per capacity unit and always gives a plan"
+}
+
+// Recipes offers `gen lotsizing`, a file in the TTM layout.
+func (Family) Recipes() []instances.Recipe {
+	return []instances.Recipe{{
+		Name:  "lotsizing",
+		Usage: "--items N --periods T --utilisation U --setup-scale S --seed K [-o FILE]",
+		Short: "Capacitated lot-sizing file, TTM layout (recipe in the style of Trigeiro, Thomas & McClain 1989; constants from memory)",
+		Options: []instances.Option{
+			{Name: "items", Usage: "number of items", Kind: instances.Int, Default: "10", Min: 1, HasMin: true, Max: 10000, HasMax: true},
+			{Name: "periods", Usage: "number of periods", Kind: instances.Int, Default: "20", Min: 1, HasMin: true, Max: 10000, HasMax: true},
+			{Name: "utilisation", Usage: "share of capacity taken by mean demand and a setup of every item every second period", Kind: instances.Float, Default: "0.85", Min: 0.01, HasMin: true, Max: 1, HasMax: true},
+			{Name: "setup-scale", Usage: "factor on the setup times (10..50)", Kind: instances.Float, Default: "1", Min: 0.01, HasMin: true, Max: 100, HasMax: true},
+			{Name: "seed", Usage: "random seed", Kind: instances.Int, Default: "1", Min: 0, HasMin: true},
+		},
+		Run: func(v instances.Values, out instances.Sink) (string, error) {
+			in, err := Generate(GenerateConfig{Items: v.Int("items"), Periods: v.Int("periods"), Utilisation: v.Float("utilisation"),
+				SetupTimeScale: v.Float("setup-scale"), Seed: uint64(v.Int("seed"))})
+			if err != nil {
+				return "", err
+			}
+			w, err := out.Create("")
+			if err != nil {
+				return "", err
+			}
+			if err := WriteTTM(w, in); err != nil {
+				w.Close()
+				return "", err
+			}
+			return "", w.Close()
+		},
+	}}
 }
 
 // WriteMPS writes the full model.

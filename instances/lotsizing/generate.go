@@ -11,7 +11,10 @@ type GenerateConfig struct {
 	// Utilisation is the target share of capacity used by production and
 	// expected setups; 0 means 0.85.
 	Utilisation float64
-	Seed        uint64
+	// SetupTimeScale multiplies the setup times (10..50); 0 means 1.
+	// Scales above 1 with a utilisation near 1 give tight instances.
+	SetupTimeScale float64
+	Seed           uint64
 }
 
 // Generate builds an instance in the style of the Trigeiro, Thomas &
@@ -22,7 +25,9 @@ type GenerateConfig struct {
 // costs 200..1000, one capacity for all periods set so that mean demand
 // plus one setup of every item every second period fills Utilisation of
 // it. Capacity is raised where needed so that cumulative demand always
-// fits.
+// fits (and in period 1 its setups too, since nothing can be made
+// earlier); setup times later are not checked, so a tight recipe may make
+// an instance without any plan.
 func Generate(c GenerateConfig) (*Instance, error) {
 	if c.Items < 1 || c.Periods < 1 {
 		return nil, fmt.Errorf("lotsizing generate: need items and periods >= 1, got %d x %d", c.Items, c.Periods)
@@ -34,11 +39,18 @@ func Generate(c GenerateConfig) (*Instance, error) {
 	if !(u > 0 && u <= 1) {
 		return nil, fmt.Errorf("lotsizing generate: utilisation %v outside (0, 1]", u)
 	}
+	scale := c.SetupTimeScale
+	if scale == 0 {
+		scale = 1
+	}
+	if !(scale > 0 && scale <= 100) {
+		return nil, fmt.Errorf("lotsizing generate: setup time scale %v outside (0, 100]", scale)
+	}
 	r := rand.New(rand.NewPCG(c.Seed, 0x7733))
 	in := &Instance{Name: fmt.Sprintf("gen-%dx%d-%d", c.Items, c.Periods, c.Seed), Capacity: make([]float64, c.Periods)}
 	load := 0.0
 	for i := 0; i < c.Items; i++ {
-		it := Item{Name: fmt.Sprintf("item%d", i+1), UnitTime: 1, Holding: float64(80+r.IntN(41)) / 100, SetupTime: float64(10 + r.IntN(41)), SetupCost: float64(200 + r.IntN(801))}
+		it := Item{Name: fmt.Sprintf("item%d", i+1), UnitTime: 1, Holding: float64(80+r.IntN(41)) / 100, SetupTime: scale * float64(10+r.IntN(41)), SetupCost: float64(200 + r.IntN(801))}
 		d := make([]float64, c.Periods)
 		sum := 0.0
 		for t := range d {
@@ -55,7 +67,10 @@ func Generate(c GenerateConfig) (*Instance, error) {
 	cum, cumCap := 0.0, 0.0
 	for t := 0; t < c.Periods; t++ {
 		for i := range in.Items {
-			cum += in.Demand[i][t] + in.Items[i].SetupTime
+			cum += in.Demand[i][t]
+			if t == 0 && in.Demand[i][t] > 0 {
+				cum += in.Items[i].SetupTime // period 1 makes its own demand
+			}
 		}
 		cumCap += capacity
 		if cum > cumCap {

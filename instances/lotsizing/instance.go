@@ -26,19 +26,29 @@
 // overtime cost are penalised and the subgradient drives them back.
 //
 // Repair: the relaxed plan (every item's Wagner-Whitin lots at the round's
-// prices) is made capacity-feasible and improved by one local search over
-// lot moves, in the spirit of the smoothing of Trigeiro et al. (1989): a
-// move shifts part or all of a lot of one item to an earlier period, or to
-// a later one where the stock in between allows; whole-lot moves merge lots
-// and drop setups, partial moves split lots; quantities tried empty the
-// lot, clear the source period's excess or fill the target's slack. Moves
-// are judged by their exact cost change (setup, holding and excess
-// capacity, priced at the overtime cost or at a large penalty where no
-// overtime is allowed), computed incrementally from one item and two
-// periods. An iterated search kicks the best plan with seeded random lot
-// moves; the number of candidate moves and kicks bounds the effort. When
-// excess remains where no overtime is allowed the repair reports no plan
-// for that round; the engine keeps the best plan found.
+// prices) is first made capacity-feasible by priced lot moves, in the
+// spirit of the smoothing of Trigeiro et al. (1989): a move shifts part or
+// all of a lot to an earlier period, or to a later one where the stock in
+// between allows, judged by its exact cost change. Its setup pattern then
+// enters a local search over setup patterns in which every pattern is
+// priced exactly: with the setups fixed, the cheapest quantities are a
+// minimum-cost flow (the transshipment view of Hindi 1996, cited from
+// memory; capacity units,
+// so unit times keep the network pure), with excess capacity priced at the
+// overtime cost or, where none is allowed, at a penalty that starts soft
+// and hardens (strategic oscillation) until the excess is gone. Moves add,
+// drop or shift a setup; while stuck over capacity, a period's setup may
+// pass to another item. While no plan exists, a forward construction with
+// a capacity look-ahead (in the style of Dixon & Silver 1981, cited from
+// memory) is a second start. An
+// iterated search then continues from the best plan found so far: kicks
+// are a few random setup moves or the re-planning of one item by the
+// Wagner-Whitin recursion with the other items' loads fixed. The effort of
+// a repair is counted in arcs scanned by the flow solves (reproducible, no
+// clock), starting near the work of the five rounds between repairs and
+// growing with the round. When excess remains where no overtime is allowed
+// the repair reports no plan for that round; the engine keeps the best
+// plan found.
 //
 // Block numbering: blocks 0..n-1 are the items (variables as documented on
 // subproblem.LotSizing: Var t setup, T+t production, 2T+t stock); the

@@ -27,7 +27,7 @@ func TestReferenceValues(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	rounds := 150
+	rounds := 100
 	if testing.Short() {
 		rounds = 40
 	}

@@ -16,8 +16,11 @@ type Options struct {
 	// cost of its own exceed its capacity at this cost per capacity unit.
 	OvertimeCost float64
 	// Moves bounds the candidate moves evaluated by one repair's local
-	// search; 0 means 400 per item-period pair.
+	// search; 0 means 20 per item-period pair.
 	Moves int
+	// Effort scales the work of the repair's setup-pattern search (see
+	// repairer.budget); 0 means 1.
+	Effort float64
 }
 
 // overtimeCosts returns the per-period overtime cost (negative = none).
@@ -109,8 +112,15 @@ func NewProblem(in *Instance, opt Options) (*decomp.Problem, error) {
 	}
 	moves := opt.Moves
 	if moves <= 0 {
-		moves = 400 * len(in.Items) * T
+		moves = 20 * len(in.Items) * T
 	}
-	p.Repair = &repairer{in: in, overtime: oc, moves: moves}
+	effort := opt.Effort
+	if effort <= 0 {
+		effort = 1
+	}
+	// About the work of five rounds: a fixed part for the engine's round
+	// overhead and n·T² for the blocks' dynamic programs.
+	base := int(effort * (200000 + 3*float64(len(in.Items)*T*T)))
+	p.Repair = &repairer{in: in, overtime: oc, moves: moves, work: base, firstPlanWork: 6 * base}
 	return p, nil
 }

@@ -3,7 +3,6 @@ package lotsizing
 import (
 	"context"
 	"math"
-	"math/rand/v2"
 
 	"pincer/decomp"
 )
@@ -20,10 +19,18 @@ type Schedule struct {
 	Cost       float64     `json:"cost"`
 }
 
+// repairer keeps scratch space of its own; the engine never runs two
+// repairs at once.
 type repairer struct {
 	in       *Instance
 	overtime []float64
 	moves    int
+	work     int // pattern-search work of an early repair (see budget)
+	// firstPlanWork is the extra work a repair may spend on each attempt
+	// to remove excess capacity while the run has no plan.
+	firstPlanWork int
+	pen           []float64 // cost per capacity unit beyond capacity (a large penalty where no overtime)
+	pat           *pattern
 }
 
 const tol = 1e-9
@@ -157,18 +164,23 @@ func (s *state) search(ctx context.Context, budget int) {
 func (r *repairer) Repair(ctx context.Context, in *decomp.RepairInput) (*decomp.Plan, error) {
 	inst := r.in
 	n, T := len(inst.Items), inst.Periods()
-	s := &state{in: inst, pen: make([]float64, T), x: make([][]float64, n), load: make([]float64, T)}
-	big := 1.0
-	for _, it := range inst.Items {
-		big += it.SetupCost + it.Holding*float64(T)
-	}
-	big *= 1000
-	for t := range s.pen {
-		s.pen[t] = r.overtime[t]
-		if s.pen[t] < 0 {
-			s.pen[t] = big
+	if r.pen == nil {
+		big := 1.0
+		for _, it := range inst.Items {
+			big += it.SetupCost + it.Holding*float64(T)
 		}
+		big *= 1000
+		r.pen = make([]float64, T)
+		for t := range r.pen {
+			r.pen[t] = r.overtime[t]
+			if r.pen[t] < 0 {
+				r.pen[t] = big
+			}
+		}
+		r.pat = newPattern(inst, append([]float64(nil), r.pen...), r.overtime)
 	}
+	// The relaxed plan, made capacity-feasible by priced lot moves.
+	s := &state{in: inst, pen: r.pen, x: make([][]float64, n), load: make([]float64, T)}
 	for i := 0; i < n; i++ {
 		s.x[i] = make([]float64, T)
 		for _, e := range in.Answers[i].Primal {
@@ -179,50 +191,65 @@ func (r *repairer) Repair(ctx context.Context, in *decomp.RepairInput) (*decomp.
 	}
 	s.recomputeLoad()
 	s.search(ctx, r.moves)
-	bestX, bestCost := s.clone(), s.total()
-	// The best plan so far is a second starting point.
+	// Its setup pattern, priced exactly and improved by descent.
+	budget := r.budget(in)
+	ps := newPatternSearch(r.pat, in.Seed)
+	r.softPenalty(1)
+	ps.start(s.x)
+	ps.work = budget / 4
+	ps.descend(ctx)
+	// Strategic oscillation: excess capacity where no overtime is allowed
+	// is priced softly first, so that the descent can trade it against
+	// setups and stock, then ever harder until none is left (or the
+	// penalty is the hard one). Until a first plan exists each step may
+	// go on longer: a plan found early steers the rest of the run.
+	for k := 1; k <= 12 && !r.feasible(ps.x) && ctx.Err() == nil; k++ {
+		r.softPenalty(math.Pow(3, float64(k)))
+		ps.cost = ps.price(ps.y, ps.x)
+		if in.Best == nil {
+			ps.work += r.firstPlanWork
+		} else {
+			ps.work += budget / 16
+		}
+		ps.descend(ctx)
+	}
+	r.softPenalty(math.Inf(1))
+	ps.cost = ps.price(ps.y, ps.x)
+	// Re-plan every item against the others' loads while that improves
+	// (cheap: one flow solve per sweep).
+	for k := 0; k < 4 && ps.sweep(); k++ {
+	}
+	if in.Best == nil && !r.feasible(ps.x) {
+		// No plan yet: a forward construction with capacity look-ahead is
+		// the other start.
+		keepY, keepX, keepCost := cloneB(ps.y), clone(ps.x), ps.cost
+		ps.start(construct(inst, r.pat.net))
+		ps.work += r.firstPlanWork
+		ps.descend(ctx)
+		if keepCost < ps.cost {
+			copyB(ps.y, keepY)
+			copyF(ps.x, keepX)
+			ps.cost = keepCost
+		}
+	}
+	// The iterated search continues from the better of that pattern and
+	// the best plan so far, so the effort of earlier repairs carries over.
 	if in.Best != nil {
 		if b, ok := in.Best.Detail.(*Schedule); ok && len(b.Production) == n {
-			for i := range s.x {
-				copy(s.x[i], b.Production[i])
-			}
-			s.recomputeLoad()
-			if c := s.total(); c < bestCost-tol {
-				bestX, bestCost = s.clone(), c
+			keepY, keepX, keepCost := cloneB(ps.y), clone(ps.x), ps.cost
+			ps.start(b.Production)
+			if keepCost < ps.cost {
+				copyB(ps.y, keepY)
+				copyF(ps.x, keepX)
+				ps.cost = keepCost
 			}
 		}
 	}
-	// Iterated local search: kick the best plan by random lot moves and
-	// search again; a kick's outcome replaces the best only when cheaper.
-	kicks := 60
-	if in.Final {
-		kicks = 1000
+	for k := 0; k < 4 && ps.sweep(); k++ {
 	}
-	rng := rand.New(rand.NewPCG(in.Seed, 1989))
-	for k := 0; k < kicks && ctx.Err() == nil; k++ {
-		for i := range s.x {
-			copy(s.x[i], bestX[i])
-		}
-		s.recomputeLoad()
-		for m := 0; m < 1+rng.IntN(3); m++ {
-			i, t, t2 := rng.IntN(n), rng.IntN(T), rng.IntN(T)
-			if t == t2 || s.x[i][t] <= tol {
-				continue
-			}
-			q := s.x[i][t]
-			if rng.IntN(2) == 0 {
-				q /= 2
-			}
-			if _, ok := s.delta(i, t, t2, q, s.stock(i)); ok {
-				s.apply(i, t, t2, q)
-			}
-		}
-		s.search(ctx, r.moves/4)
-		if c := s.total(); c < bestCost-tol {
-			bestX, bestCost = s.clone(), c
-		}
-	}
-	sch := scheduleOf(inst, bestX, r.overtime)
+	ps.work += budget - budget/4
+	ps.iterate(ctx)
+	sch := scheduleOf(inst, ps.x, r.overtime)
 	if sch == nil {
 		return nil, nil
 	}
@@ -231,6 +258,45 @@ func (r *repairer) Repair(ctx context.Context, in *decomp.RepairInput) (*decomp.
 		use[t] = sch.Load[t] - sch.Overtime[t]
 	}
 	return &decomp.Plan{Value: sch.Cost, Use: use, Detail: sch}, nil
+}
+
+// softPenalty prices excess capacity in the pattern search at factor
+// times the largest holding cost per capacity unit and period, capped at
+// the hard penalty, in periods without overtime; periods with overtime
+// keep its cost.
+func (r *repairer) softPenalty(factor float64) {
+	h := 0.0
+	for _, it := range r.in.Items {
+		if it.UnitTime > 0 {
+			h = math.Max(h, it.Holding/it.UnitTime)
+		}
+	}
+	for t, c := range r.pen {
+		r.pat.pen[t] = c
+		if r.overtime[t] < 0 {
+			r.pat.pen[t] = math.Min(c, factor*math.Max(h, 1e-3))
+		}
+	}
+}
+
+// feasible reports whether production x is a plan (no excess capacity
+// where no overtime is allowed).
+func (r *repairer) feasible(x [][]float64) bool {
+	return scheduleOf(r.in, x, r.overtime) != nil
+}
+
+// budget is the work (arcs scanned by flow solves, see netflow.work) of
+// one repair's pattern search: a base of about the work of the five rounds
+// between repairs (200000 plus 3·n·T², times Options.Effort), times
+// 1 + round/10, so that the first rounds, which move the bound most, run
+// fast and a long run spends ever more of its time improving the best
+// plan; the last repair does four times more.
+func (r *repairer) budget(in *decomp.RepairInput) int {
+	b := r.work * (1 + min(in.Round, 100000)/10)
+	if in.Final {
+		b *= 4
+	}
+	return b
 }
 
 func (s *state) clone() [][]float64 {
