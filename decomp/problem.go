@@ -209,6 +209,15 @@ type RepairInput struct {
 	BoundPrices []float64
 	Best        *Plan  // best plan so far, or nil
 	Seed        uint64 // derived from Settings.Seed and Round, for reproducible randomness
+	// Workers is the run's worker budget (Settings.Workers; 0 means
+	// GOMAXPROCS). A repairer may split its search into as many
+	// goroutines; its result must not depend on the number.
+	Workers int
+	// Stalled reports that bound and plan have not improved for
+	// Settings.StallRounds rounds in a run whose time limit is a budget
+	// (see Settings.StallRounds): the rounds wait for this repair, which
+	// may spend more effort than usual.
+	Stalled bool
 }
 
 // Repairer turns block answers into a feasible plan. It returns nil (and no
