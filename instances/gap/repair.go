@@ -102,7 +102,7 @@ func (r *repairer) searchSettings(rin *decomp.RepairInput) heuristics.SearchSett
 	st := heuristics.SearchSettings{Moves: (n + 200) * scale, Rounds: 1, Tasks: 2, Workers: workers}
 	switch {
 	case rin.Final:
-		st.Moves, st.Rounds = 4*n+2000, 4
+		st.Moves, st.Rounds = 2*n+1000, 2
 	case rin.Stalled:
 		st.Moves *= 4
 		st.Rounds = 2
