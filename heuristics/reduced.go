@@ -229,11 +229,10 @@ func (sr *Searcher) PairBound(i, j int) (with, without float64) {
 // nothing by ignoring them; they only spend their moves where a better plan
 // can be.
 //
-// With focus > 0 the searches are narrowed further, heuristically: each
-// item keeps only its focus allowed pairs of least bound (ties to the lower
-// resource) besides the incumbent's pair. This ranks the candidates by what
-// the relaxation knows; unlike the sound part it may hide improving plans.
-func (sr *Searcher) Restrict(incumbent []int, value, step float64, focus int) (allowed int, proved bool) {
+// Restrict also ranks each item's allowed pairs by their bound, least
+// first (ties to the lower resource), for the narrowed tasks of PlanSearch
+// (SearchSettings.Focus).
+func (sr *Searcher) Restrict(incumbent []int, value, step float64) (allowed int, proved bool) {
 	md := sr.base
 	m, n := md.m, md.n
 	pb := sr.bounds
@@ -275,25 +274,6 @@ func (sr *Searcher) Restrict(incumbent []int, value, step float64, focus int) (a
 		if left == 0 {
 			proved = true
 		}
-		if focus > 0 && left > focus {
-			// keep the focus pairs of least bound
-			keys := pb.keys[:0]
-			for _, i32 := range md.allowed(j) {
-				if k := j*m + int(i32); cost[k] <= maxFinite {
-					keys = append(keys, itemKey{pb.in[k], i32})
-				}
-			}
-			slices.SortFunc(keys, func(a, b itemKey) int {
-				if a.ratio != b.ratio {
-					return cmp.Compare(a.ratio, b.ratio)
-				}
-				return cmp.Compare(a.j, b.j)
-			})
-			for _, e := range keys[focus:] {
-				cost[j*m+int(e.j)] = math.Inf(1)
-			}
-			pb.keys = keys
-		}
 		if incumbent != nil {
 			if i := incumbent[j]; i >= 0 && i < m && md.cost[j*m+i] <= maxFinite {
 				cost[j*m+i] = md.cost[j*m+i]
@@ -304,7 +284,62 @@ func (sr *Searcher) Restrict(incumbent []int, value, step float64, focus int) (a
 	rm.index()
 	sr.ropt = rm.opt
 	sr.active = rm
+	// rank each item's allowed pairs by bound
+	if cap(sr.ranked) < len(rm.opt) {
+		sr.ranked = make([]int32, len(rm.opt))
+	}
+	sr.ranked = sr.ranked[:len(rm.opt)]
+	for j := 0; j < n; j++ {
+		keys := pb.keys[:0]
+		for _, i32 := range rm.allowed(j) {
+			keys = append(keys, itemKey{pb.in[j*m+int(i32)], i32})
+		}
+		slices.SortFunc(keys, func(a, b itemKey) int {
+			if a.ratio != b.ratio {
+				return cmp.Compare(a.ratio, b.ratio)
+			}
+			return cmp.Compare(a.j, b.j)
+		})
+		for q, e := range keys {
+			sr.ranked[int(rm.ostart[j])+q] = e.j
+		}
+		pb.keys = keys
+	}
 	return len(rm.opt), proved
+}
+
+// narrow builds into buf the model of a narrowed task: every item keeps
+// its focus allowed pairs of least bound (ranked by Restrict) and its pairs
+// in the given plans. With no ranking (no Restrict since the bounds) or
+// focus <= 0 it returns md itself.
+func (sr *Searcher) narrow(md *model, focus int, buf *model, plans ...[]int) *model {
+	if focus <= 0 || md != sr.active || len(sr.ranked) != len(md.opt) {
+		return md
+	}
+	m, n := md.m, md.n
+	if cap(buf.cost) < m*n {
+		buf.cost = make([]float64, m*n)
+	}
+	cost := buf.cost[:m*n]
+	for k := range cost {
+		cost[k] = math.Inf(1)
+	}
+	for j := 0; j < n; j++ {
+		r := sr.ranked[md.ostart[j]:md.ostart[j+1]]
+		for q := 0; q < len(r) && q < focus; q++ {
+			k := j*m + int(r[q])
+			cost[k] = md.cost[k]
+		}
+		for _, p := range plans {
+			if p != nil {
+				k := j*m + p[j]
+				cost[k] = md.cost[k]
+			}
+		}
+	}
+	*buf = model{m: m, n: n, cost: cost, weight: md.weight, limit: md.limit, opt: buf.opt[:0]}
+	buf.index()
+	return buf
 }
 
 // Allowed reports whether the current restriction (see Restrict) lets

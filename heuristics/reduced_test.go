@@ -159,7 +159,7 @@ func TestPairBoundsBruteForce(t *testing.T) {
 			}
 		})
 		// an incumbent one unit off the optimum: the optimum improves on it
-		_, proved := sr.Restrict(nil, opt+sign, 1, 0)
+		_, proved := sr.Restrict(nil, opt+sign, 1)
 		if proved {
 			t.Fatalf("trial %d: restriction claims no plan better than %v, but the optimum is %v", trial, opt+sign, opt)
 		}

@@ -53,6 +53,13 @@ type SearchSettings struct {
 	// them one after another. It changes the time a search takes, never
 	// its result.
 	Workers int
+	// Focus narrows the tasks' moves: task t keeps, per item, only its
+	// Focus[t % len(Focus)] allowed pairs of least bound (as ranked by
+	// Restrict) and its pair in the task's initiating plan (the guiding
+	// plan's other pairs are then skipped by the path); 0 (or no Focus, or
+	// no Restrict) keeps every allowed pair. A heuristic narrowing: the
+	// plans found are feasible for the whole assignment either way.
+	Focus []int
 }
 
 // elitePool is the size of the pool of elite plans.
@@ -150,6 +157,7 @@ func (sr *Searcher) PlanSearch(ctx context.Context, st SearchSettings, seed uint
 	st.Workers = max(st.Workers, 1)
 	for len(sr.tasks) < st.Tasks {
 		sr.tasks = append(sr.tasks, newSearch(md.m, n))
+		sr.tmods = append(sr.tmods, model{})
 	}
 	res := make([]taskResult, st.Tasks)
 	type job struct{ from, guide []int }
@@ -176,7 +184,11 @@ func (sr *Searcher) PlanSearch(ctx context.Context, st SearchSettings, seed uint
 			}
 		}
 		run := func(t int) {
-			res[t] = sr.tasks[t].relinkTask(ctx, md, jobs[t].from, jobs[t].guide, st, rngs[t])
+			tm := md
+			if len(st.Focus) > 0 {
+				tm = sr.narrow(md, st.Focus[t%len(st.Focus)], &sr.tmods[t], jobs[t].from)
+			}
+			res[t] = sr.tasks[t].relinkTask(ctx, tm, jobs[t].from, jobs[t].guide, st, rngs[t])
 		}
 		if st.Workers == 1 {
 			for t := range jobs {

@@ -99,7 +99,7 @@ func (r *repairer) searchSettings(rin *decomp.RepairInput) heuristics.SearchSett
 		workers = runtime.GOMAXPROCS(0)
 	}
 	scale := min(1+r.idle/32, 16)
-	st := heuristics.SearchSettings{Moves: (n + 200) * scale, Rounds: 1, Tasks: 2, Workers: workers}
+	st := heuristics.SearchSettings{Moves: (n + 200) * scale, Rounds: 1, Tasks: 2, Workers: workers, Focus: r.focus()}
 	switch {
 	case rin.Final:
 		st.Moves, st.Rounds = 2*n+1000, 2
@@ -110,16 +110,18 @@ func (r *repairer) searchSettings(rin *decomp.RepairInput) heuristics.SearchSett
 	return st
 }
 
-// focus is how many agents of least pair bound each job keeps in the plan
-// search (see heuristics.Searcher.Restrict): 4 with 20 agents or more,
-// where it let the search reach plans within 1 % of the best known on the
-// 80-agent instances of types D and E in a few hundred rounds (against 2-9 %
-// with every agent), and no narrowing below (only the sound fixing).
-func (r *repairer) focus() int {
+// focus gives the narrowing of the plan search's tasks (see
+// heuristics.SearchSettings.Focus): with 20 agents or more, the first task
+// keeps the 3 agents of least pair bound per job and the second 6; below,
+// every agent the fixing allows. On the 80-agent instances of types D and E
+// the narrowed search reached plans within 1 % of the best known in a few
+// hundred rounds, against 2-9 % with every agent; D did best with 2-4
+// agents, E with 4-8, hence one task of each.
+func (r *repairer) focus() []int {
 	if r.in.Agents >= 20 {
-		return 4
+		return []int{3, 6}
 	}
-	return 0
+	return nil
 }
 
 func (r *repairer) Repair(ctx context.Context, rin *decomp.RepairInput) (*decomp.Plan, error) {
@@ -231,7 +233,7 @@ func (r *repairer) Repair(ctx context.Context, rin *decomp.RepairInput) (*decomp
 	}
 	if rin.Best != nil {
 		if best, ok := rin.Best.Detail.([]int); ok {
-			r.searcher.Restrict(best, rin.Best.Value, 1, r.focus())
+			r.searcher.Restrict(best, rin.Best.Value, 1)
 		}
 	}
 	assign, value := r.searcher.Improve(ctx, assign, settings, rng)
