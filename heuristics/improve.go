@@ -68,7 +68,10 @@ func Improve(ctx context.Context, p *Assignment, assign []int, s ImproveSettings
 	return sr.Improve(ctx, assign, s, rng)
 }
 
-// Improve is the package-level [Improve] on the compiled assignment.
+// Improve is the package-level [Improve] on the compiled assignment. When
+// [Searcher.Restrict] has forbidden pairs and assign uses none of them, the
+// search keeps to the allowed pairs (a better plan uses no other); otherwise
+// it searches every pair.
 func (sr *Searcher) Improve(ctx context.Context, assign []int, s ImproveSettings, rng *rand.Rand) ([]int, float64) {
 	in := append([]int(nil), assign...)
 	md := sr.base
