@@ -103,9 +103,16 @@ func (r *repairer) searchSettings(rin *decomp.RepairInput) heuristics.SearchSett
 	switch {
 	case rin.Final:
 		st.Moves, st.Rounds = 2*n+1000, 2
+		if r.opt.FinalImprove != (heuristics.ImproveSettings{}) {
+			// an explicit final effort bounds the final search as well
+			st.Moves, st.Stall, st.Rounds = r.opt.FinalImprove.Moves, r.opt.FinalImprove.Stall, 1
+		}
 	case rin.Stalled:
 		st.Moves *= 4
 		st.Rounds = 2
+		if r.opt.Improve != (heuristics.ImproveSettings{}) {
+			st.Moves, st.Stall, st.Rounds = r.opt.Improve.Moves, r.opt.Improve.Stall, 1
+		}
 	}
 	return st
 }
