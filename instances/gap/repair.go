@@ -204,7 +204,13 @@ func (r *repairer) Repair(ctx context.Context, rin *decomp.RepairInput) (*decomp
 		}
 		r.failures = 0
 	}
-	search := rin.Final || rin.Stalled || (r.calls%searchEvery == 0 && r.opt.Improve == (heuristics.ImproveSettings{}))
+	// In rounds, the plan search replaces the periodic tabu search where
+	// the tasks are narrowed (20 agents or more); on smaller instances the
+	// tabu search from the repaired plan did as well or better (fingerprint
+	// runs of 10 agents and 100 jobs), so they keep it and search plans
+	// only in the last repair and once the rounds have stalled.
+	search := rin.Final || rin.Stalled ||
+		(r.focus() != nil && r.calls%searchEvery == 0 && r.opt.Improve == (heuristics.ImproveSettings{}))
 	settings := r.improveSettings(rin.Final)
 	if search && !rin.Final {
 		settings.Moves = -1 // the plan search below does the tabu moves
@@ -250,12 +256,16 @@ func (r *repairer) Repair(ctx context.Context, rin *decomp.RepairInput) (*decomp
 			r.searcher.Offer(best)
 		}
 	}
-	if search && ctx.Err() == nil {
-		if next, v, ok := r.searcher.PlanSearch(ctx, r.searchSettings(rin), rin.Seed); ok && rin.Sense.Better(v, value) {
-			assign, value = next, v
+	planSearch := func() {
+		if search && ctx.Err() == nil {
+			if next, v, ok := r.searcher.PlanSearch(ctx, r.searchSettings(rin), rin.Seed); ok && rin.Sense.Better(v, value) {
+				assign, value = next, v
+			}
 		}
 	}
-	if rin.Final {
+	if !rin.Final {
+		planSearch()
+	} else {
 		// More passes while they pay off (each from the best so far, with
 		// fresh random choices). Small instances, whose passes are cheap,
 		// get more patience: 1000/n fruitless passes in a row (at least 3)
@@ -269,6 +279,10 @@ func (r *repairer) Repair(ctx context.Context, rin *decomp.RepairInput) (*decomp
 				idle++
 			}
 		}
+		// The plan search last, from the pool that now holds the passes'
+		// plan too: it can only improve on what the passes found.
+		r.searcher.Offer(assign)
+		planSearch()
 	}
 	if !rin.Final {
 		if rin.Best == nil || rin.Sense.Better(value, rin.Best.Value) {
