@@ -98,7 +98,8 @@
 //	prices-settled     the projected subgradient vanished: dual optimal prices
 //	round-limit        Settings.Rounds rounds made (early)
 //	time-limit         Settings.Time ran out, or the caller's deadline (early)
-//	stalled            no better bound or plan for Settings.StallRounds rounds (early)
+//	stalled            no better bound or plan for Settings.StallRounds rounds (early; with a
+//	                   time limit only when StallRounds is set, see Settings.StallRounds)
 //	interrupted        the caller cancelled the context (early)
 //	proved-infeasible  the bound passed Problem.WorstPlanValue: no feasible plan
 //	search-closed      the repairer's own exact search proved its plan (Plan.ProvedOptimal)

@@ -214,6 +214,15 @@ type RepairInput struct {
 	// their averaged values (numbered as in Answer.Primal). Nil otherwise.
 	// A repairer may use it to rank choices; it is the repairer's own copy.
 	Primal [][]Entry
+	// Workers is the run's worker budget (Settings.Workers; 0 means
+	// GOMAXPROCS). A repairer may split its search into as many
+	// goroutines; its result must not depend on the number.
+	Workers int
+	// Stalled reports that bound and plan have not improved for
+	// Settings.StallRounds rounds in a run whose time limit is a budget
+	// (see Settings.StallRounds): the rounds wait for this repair, which
+	// may spend more effort than usual.
+	Stalled bool
 }
 
 // Repairer turns block answers into a feasible plan. It returns nil (and no

@@ -79,11 +79,22 @@ func (s Status) Early() bool {
 
 // Settings are limits and choices for a run. The zero value is valid and
 // means sensible defaults.
+//
+// The stall rule: the run has stalled after StallRounds rounds without a
+// better bound or plan. Without a time limit, or with StallRounds set
+// (> 0), a stall ends the run (status stalled). With a time limit and
+// StallRounds left at 0 the time is a budget: a stall does not end the run
+// while the gap is open, it moves effort from price rounds to plan search.
+// The in-round repairs then see RepairInput.Stalled (a repairer may spend
+// more per call) and run on the round's goroutine, so that the rounds pause
+// while they search (same merge points, same outcome). Such a run ends at
+// its limit, or earlier only when the gap closes, the plan is proved or
+// the prices settle.
 type Settings struct {
 	Gap         float64       // relative gap to stop at; 0 means 1e-4, negative means never
 	Time        time.Duration // wall-clock limit; 0 means none
 	Rounds      int           // round limit; 0 means none
-	StallRounds int           // rounds without any improvement before stopping; 0 means 300
+	StallRounds int           // rounds without any improvement that make a stall; 0 means 300
 	RepairEvery int           // repair on round 1 and every this many rounds; 0 means 5
 	Seed        uint64        // passed (mixed with the round) to the repairer
 	Method      Method        // price-update rule; nil means a fresh Subgradient
@@ -114,6 +125,10 @@ type Settings struct {
 	// since the last one. Checkpoints never change a run's outcome, so a
 	// clock-driven schedule keeps runs reproducible.
 	CheckpointInterval time.Duration
+
+	// stallBudget is set by withDefaults when a stall does not end the run
+	// (a time limit and no StallRounds given): see StallRounds.
+	stallBudget bool
 }
 
 // Progress is what an observer sees after each round.
@@ -219,6 +234,7 @@ func withDefaults(s Settings) Settings {
 	}
 	if s.StallRounds <= 0 {
 		s.StallRounds = 300
+		s.stallBudget = s.Time > 0
 	}
 	if s.RepairEvery <= 0 {
 		s.RepairEvery = 5
@@ -505,10 +521,16 @@ func (r *runner) stopRule(norm float64) Status {
 		return r.closedStatus()
 	case norm == 0:
 		return PricesSettled
-	case st.Idle >= r.s.StallRounds:
+	case st.Idle >= r.s.StallRounds && !r.s.stallBudget:
 		return Stalled
 	}
 	return Running
+}
+
+// stalled reports that the rounds have stalled while the time limit is a
+// budget: the repairs then get the run's effort (see Settings.StallRounds).
+func (r *runner) stalled() bool {
+	return r.s.stallBudget && r.st.Idle >= r.s.StallRounds
 }
 
 // finish merges the repair in flight, runs the last repair and builds the
@@ -653,6 +675,7 @@ func (r *runner) repairInput(round int, final, copyState bool) *RepairInput {
 		Round: round, Final: final, Sense: r.p.Sense, Prices: r.st.Prices,
 		Answers: r.answers, Best: r.st.Plan, Seed: mixSeed(r.s.Seed, uint64(round)),
 		Bound: r.st.Bound, BoundPrices: r.st.BestPrices,
+		Workers: r.s.Workers, Stalled: r.stalled(),
 	}
 	if copyState {
 		in.Prices = append([]float64(nil), r.st.Prices...)
@@ -725,10 +748,11 @@ func (r *runner) launchRepair(ctx context.Context, round int) {
 		plan, err := r.p.Repair.Repair(rctx, in)
 		ch <- repairOutcome{round: round, plan: plan, err: err, cancelled: rctx.Err() != nil}
 	}
-	if r.s.Workers == 1 {
-		// A budget of one worker: the repair runs here, and its plan still
-		// waits for the next repair round, so the run is the same as with
-		// the overlap, only on one core.
+	if r.s.Workers == 1 || in.Stalled {
+		// A budget of one worker, or stalled rounds under a time budget:
+		// the repair runs here, and its plan still waits for the next
+		// repair round, so the run is the same as with the overlap, only
+		// without the rounds competing for the cores.
 		work()
 	} else {
 		go work()

@@ -101,6 +101,27 @@ type model struct {
 	cost   []float64 // [j*m+i] item-major, minimisation sense, +Inf forbidden
 	weight []float64 // [j*m+i]
 	limit  []float64 // m, capacity plus tolerance
+	// opt[ostart[j]:ostart[j+1]] lists, ascending, the resources item j
+	// may go to (finite cost); the moves loop over these lists only.
+	opt    []int32
+	ostart []int32
+}
+
+// allowed lists the resources item j may go to, ascending.
+func (md *model) allowed(j int) []int32 { return md.opt[md.ostart[j]:md.ostart[j+1]] }
+
+// index builds the allowed lists from the costs.
+func (md *model) index() {
+	md.ostart = make([]int32, md.n+1)
+	md.opt = md.opt[:0]
+	for j := 0; j < md.n; j++ {
+		for i := 0; i < md.m; i++ {
+			if md.cost[j*md.m+i] <= maxFinite {
+				md.opt = append(md.opt, int32(i))
+			}
+		}
+		md.ostart[j+1] = int32(len(md.opt))
+	}
 }
 
 // compile flattens p, which must be valid.
@@ -128,6 +149,7 @@ func compile(p *Assignment) *model {
 			}
 		}
 	}
+	md.index()
 	return md
 }
 
@@ -148,7 +170,7 @@ func withPriced(base *model, priced [][]float64, sign float64, buf []float64) (*
 	if cap(buf) < m*n {
 		buf = make([]float64, m*n)
 	}
-	md := &model{m: m, n: n, cost: buf[:m*n], weight: base.weight, limit: base.limit}
+	md := &model{m: m, n: n, cost: buf[:m*n], weight: base.weight, limit: base.limit, opt: base.opt, ostart: base.ostart}
 	for i := 0; i < m; i++ {
 		row := priced[i]
 		for j := 0; j < n; j++ {

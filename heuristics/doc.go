@@ -25,6 +25,15 @@
 // assignment once for repeated calls (the engine repairs every few rounds);
 // the package-level functions compile on every call.
 //
+// [Searcher.AddItemPrices] records, from a Lagrangian relaxation that prices
+// the "every item once" rows, a bound on the plans using and avoiding each
+// pair (reduced costs); [Searcher.Restrict] forbids the pairs that cannot be
+// in a plan better than the incumbent and may narrow each item to its pairs
+// of least bound. [Searcher.PlanSearch] then runs path relinking between the
+// elite plans given to [Searcher.Offer], each path followed by the tabu
+// search, as tasks merged at fixed points (side by side on several
+// goroutines, with the same result for any number of them).
+//
 // Both scale to about a million pairs: one move looks at a bounded window of
 // items, each with its shifts to every resource and a bounded list of swap
 // partners, so a descent pass costs O(n*m + n*K) and the default budgets

@@ -68,17 +68,18 @@ func Improve(ctx context.Context, p *Assignment, assign []int, s ImproveSettings
 	return sr.Improve(ctx, assign, s, rng)
 }
 
-// Improve is the package-level [Improve] on the compiled assignment.
+// Improve is the package-level [Improve] on the compiled assignment. When
+// [Searcher.Restrict] has forbidden pairs and assign uses none of them, the
+// search keeps to the allowed pairs (a better plan uses no other); otherwise
+// it searches every pair.
 func (sr *Searcher) Improve(ctx context.Context, assign []int, s ImproveSettings, rng *rand.Rand) ([]int, float64) {
 	in := append([]int(nil), assign...)
 	md := sr.base
-	if len(assign) != md.n {
+	if !md.fits(assign) {
 		return in, sr.p.worst()
 	}
-	for j, i := range assign {
-		if i < 0 || i >= md.m || md.cost[j*md.m+i] > maxFinite {
-			return in, sr.p.worst()
-		}
+	if rm := sr.model(); rm.fits(assign) {
+		md = rm // the restriction of Restrict, when the start respects it
 	}
 	if md.n == 0 {
 		return in, 0

@@ -223,7 +223,8 @@ func (s *search) partners(j, a int, f func(k, b int)) {
 	m := s.m
 	if n <= fullWindow {
 		// small instance: the whole swap neighbourhood
-		for b := 0; b < s.m; b++ {
+		for _, b32 := range s.allowed(j) {
+			b := int(b32)
 			if b == a || !(s.model.cost[j*m+b] <= maxFinite) {
 				continue
 			}
@@ -234,7 +235,8 @@ func (s *search) partners(j, a int, f func(k, b int)) {
 		return
 	}
 	s.topRes, s.topCost = s.topRes[:0], s.topCost[:0]
-	for b := 0; b < s.m; b++ {
+	for _, b32 := range s.allowed(j) {
+		b := int(b32)
 		c := s.model.cost[j*m+b]
 		if b == a || !(c <= maxFinite) || len(s.members[b]) == 0 {
 			continue
@@ -286,7 +288,8 @@ func (s *search) descend(budget int) int {
 			j := s.order[t]
 			a := s.asg[j]
 			ca := s.cost1(a, j)
-			for i := 0; i < s.m; i++ {
+			for _, i32 := range s.allowed(j) {
+				i := int(i32)
 				k := j*m + i
 				if i == a || s.load[i]+s.weight[k] > s.limit[i] {
 					continue
@@ -442,7 +445,8 @@ func (s *search) step() bool {
 		aOver := la > limit[a]
 		aOverAfter := la-wa > limit[a]
 		// shifts
-		for i := 0; i < m; i++ {
+		for _, i32 := range s.allowed(j) {
+			i := int(i32)
 			k := j*m + i
 			c := cost[k]
 			if i == a || math.IsInf(c, 1) {
@@ -560,7 +564,8 @@ func (s *search) ejections(mv *move) {
 			nlb := lb1 - weight[kbk]
 			pb := alpha[b] * (s.excess(b, nlb) - exB0)
 			base := dc0 - cost[kbk] + pa + pb
-			for c := 0; c < m; c++ {
+			for _, c32 := range s.allowed(k) {
+				c := int(c32)
 				if c == a || c == b {
 					continue
 				}

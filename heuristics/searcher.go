@@ -15,6 +15,18 @@ type Searcher struct {
 	priced []float64 // buffer of the priced costs of Repair
 	srch   *search
 	rep    *repairer
+
+	// reduced-cost fixing (reduced.go)
+	bounds     *pairBounds
+	active     *model    // restricted model of the searches, nil for none
+	restricted []float64 // its cost buffer
+	ropt       []int32   // its allowed lists
+	ranked     []int32   // per item (CSR of active), allowed resources by bound
+
+	// plan search (relink.go)
+	elite []elitePlan
+	tasks []*search // one per task of PlanSearch
+	tmods []model   // the narrowed model of each task
 }
 
 // NewSearcher validates and compiles p.

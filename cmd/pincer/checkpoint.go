@@ -101,13 +101,24 @@ func runFingerprint(f *runFlags) string {
 	}
 	parts = append(parts,
 		fmt.Sprintf("rounds=%d", f.rounds), fmt.Sprintf("gap=%v", f.gap), fmt.Sprintf("seed=%d", f.seed),
-		fmt.Sprintf("repair-every=%d", f.repairEvery), fmt.Sprintf("stall=%d", f.stall))
+		fmt.Sprintf("repair-every=%d", f.repairEvery), stallSetting(f))
 	if f.rule != decomp.Rules()[0] {
 		// The default rule is left out, so checkpoints written before
 		// rules could be chosen still match.
 		parts = append(parts, "rule="+f.rule)
 	}
 	return strings.Join(parts, " ")
+}
+
+// stallSetting names the stall rule in force: the rounds asked for, or
+// "budget" when --stall was not given (a time limit is then a budget and a
+// stall changes what the run does instead of ending it; see decomp's stall
+// rule). Without the distinction a resume could switch between the two.
+func stallSetting(f *runFlags) string {
+	if !f.stallGiven {
+		return "stall=budget"
+	}
+	return fmt.Sprintf("stall=%d", f.stall)
 }
 
 // prepareCheckpoints wires --checkpoint into the settings and reads the

@@ -54,7 +54,7 @@ func newDemoCmd() *cobra.Command {
 					return badInput(fmt.Errorf("--%s does not apply to --scenario %s", o.opt.Name, sc.Name))
 				}
 			}
-			if err := f.check(); err != nil {
+			if err := f.check(cmd); err != nil {
 				return err
 			}
 			out := cmd.OutOrStdout()

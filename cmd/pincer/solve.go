@@ -36,6 +36,7 @@ type runFlags struct {
 	top         int
 	repairEvery int
 	stall       int
+	stallGiven  bool // --stall was on the command line (set by check)
 	history     string
 	rule        string
 	plot        string
@@ -57,7 +58,7 @@ func (f *runFlags) register(cmd *cobra.Command) {
 	fl.StringVar(&f.logFormat, "log-format", "text", "progress log format when stderr is not a terminal: text or json")
 	fl.IntVar(&f.top, "top", 5, "shared resources listed in the summary (at least 0)")
 	fl.IntVar(&f.repairEvery, "repair-every", 0, "repair every this many rounds (0: engine default; at least 0)")
-	fl.IntVar(&f.stall, "stall", 0, "stop after this many rounds without a better bound or plan (0: engine default, 300; at least 0)")
+	fl.IntVar(&f.stall, "stall", 0, "stop after this many rounds without a better bound or plan (0: 300; at least 0); when not given, a run with --time uses its whole time unless the gap closes")
 	fl.StringVar(&f.rule, "rule", decomp.Rules()[0], "price-update rule: "+strings.Join(decomp.Rules(), ", "))
 	fl.BoolVar(&f.primal, "primal-average", false, "add the volume rule's averaged (fractional) block answers to the report as primal_average (needs --rule volume)")
 	fl.StringVar(&f.plot, "plot", "", "draw bound, plan value and the most binding rows' prices over time as SVG to this file")
@@ -71,7 +72,8 @@ func (f *runFlags) register(cmd *cobra.Command) {
 }
 
 // check validates the run flags and the output paths before any solving.
-func (f *runFlags) check() error {
+func (f *runFlags) check(cmd *cobra.Command) error {
+	f.stallGiven = cmd.Flags().Changed("stall")
 	bad := func(flag string, v any, want string) error {
 		return badInput(fmt.Errorf("--%s %v: want %s", flag, v, want))
 	}
@@ -134,7 +136,7 @@ func newSolveCmd(chosen string) *cobra.Command {
 		Short: "Solve an instance and report plan, bound, gap and shadow prices",
 		Args:  cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
-			if err := f.check(); err != nil {
+			if err := f.check(cmd); err != nil {
 				return err
 			}
 			if err := f.checkpoints.check(); err != nil {
@@ -177,8 +179,16 @@ func solveModel(ctx context.Context, stdout, stderr io.Writer, f *runFlags, file
 		return nil, badInput(err)
 	}
 	settings := decomp.Settings{
-		Gap: f.gap, Time: f.time, Rounds: f.rounds, Seed: f.seed, RepairEvery: f.repairEvery, StallRounds: f.stall,
+		Gap: f.gap, Time: f.time, Rounds: f.rounds, Seed: f.seed, RepairEvery: f.repairEvery,
 		Workers: f.workers, Evaluator: decomp.Pool{Workers: f.workers},
+	}
+	if f.stallGiven {
+		// A stall stop the user asked for; without it a time limit is a
+		// budget (see decomp.Settings, the stall rule).
+		settings.StallRounds = f.stall
+		if f.stall == 0 {
+			settings.StallRounds = 300
+		}
 	}
 	if settings.Method, err = decomp.NewMethod(f.rule); err != nil {
 		return nil, badInput(err)
