@@ -307,8 +307,22 @@ func TestBenchEndToEnd(t *testing.T) {
 			t.Errorf("row %d: deviation %v, want %v; conflicts %q", k, dev, wantDev, r["conflicts"])
 		}
 		if cbcErr == nil {
-			if r["cbc_status"] != "optimal" || r["cbc_plan"] != instances.FormatNumber(want.ref) || r["cbc_threads"] != "2" || r["cbc_deviation"] != "0" {
+			// cbc proves these small instances well within the limit on a
+			// quiet machine; on a loaded one it may stop at the limit, and
+			// then only its bound's side is checked.
+			if r["cbc_threads"] != "2" {
 				t.Errorf("row %d: cbc columns %v", k, r)
+			}
+			switch r["cbc_status"] {
+			case "optimal":
+				if r["cbc_plan"] != instances.FormatNumber(want.ref) || r["cbc_deviation"] != "0" {
+					t.Errorf("row %d: cbc proved optimal but its columns say %v", k, r)
+				}
+			default:
+				if cb, err := strconv.ParseFloat(r["cbc_bound"], 64); err == nil &&
+					(want.sense == "min" && cb > want.ref+1e-6 || want.sense == "max" && cb < want.ref-1e-6) {
+					t.Errorf("row %d: cbc bound %v passes the optimum %v", k, cb, want.ref)
+				}
 			}
 		}
 	}
@@ -363,7 +377,9 @@ func TestBenchInterruptKeepsRows(t *testing.T) {
 	csvPath, chart := filepath.Join(dir, "out.csv"), filepath.Join(dir, "out.svg")
 	ctx, cancel := context.WithCancel(context.Background())
 	defer cancel()
-	f := benchFlags{time: 30 * time.Second, workers: 1, rule: "subgradient", gap: 0, seed: 1, csv: csvPath, chart: chart, benchmarks: "../../testdata"}
+	// A time limit is a budget: the first row runs its whole limit, so the
+	// limit is short; the second is interrupted 0.3 s after it starts.
+	f := benchFlags{time: 3 * time.Second, workers: 1, rule: "subgradient", gap: 0, seed: 1, csv: csvPath, chart: chart, benchmarks: "../../testdata"}
 	f.onRow = func(k int) {
 		if k == 1 {
 			time.AfterFunc(300*time.Millisecond, cancel)
@@ -376,7 +392,7 @@ func TestBenchInterruptKeepsRows(t *testing.T) {
 	if !errors.As(err, &ee) || ee.code != exitInterrupted {
 		t.Fatalf("want exit 130, got %v\n%s", err, errs.String())
 	}
-	if el := time.Since(start); el > 20*time.Second {
+	if el := time.Since(start); el > 15*time.Second {
 		t.Errorf("the interrupted row ran on for %v", el)
 	}
 	rows := readBenchCSV(t, csvPath)
