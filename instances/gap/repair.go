@@ -131,25 +131,35 @@ func (r *repairer) focus() []int {
 	return nil
 }
 
+// prepare builds the searcher and the buffers on first use.
+func (r *repairer) prepare() error {
+	if r.searcher != nil {
+		return nil
+	}
+	in := r.in
+	s, err := heuristics.NewSearcher(r.model)
+	if err != nil {
+		return err
+	}
+	r.searcher = s
+	r.priced = make([][]float64, in.Agents)
+	for i := range r.priced {
+		r.priced[i] = make([]float64, in.Jobs)
+	}
+	r.relaxed = make([][]int, in.Agents)
+	if r.opt.Relaxation == ChoiceRelaxation {
+		r.options = make([][]int, in.Jobs)
+		for j := range r.options {
+			r.options[j] = jobAgents(in, j)
+		}
+	}
+	return nil
+}
+
 func (r *repairer) Repair(ctx context.Context, rin *decomp.RepairInput) (*decomp.Plan, error) {
 	in := r.in
-	if r.searcher == nil {
-		s, err := heuristics.NewSearcher(r.model)
-		if err != nil {
-			return nil, err
-		}
-		r.searcher = s
-		r.priced = make([][]float64, in.Agents)
-		for i := range r.priced {
-			r.priced[i] = make([]float64, in.Jobs)
-		}
-		r.relaxed = make([][]int, in.Agents)
-		if r.opt.Relaxation == ChoiceRelaxation {
-			r.options = make([][]int, in.Jobs)
-			for j := range r.options {
-				r.options[j] = jobAgents(in, j)
-			}
-		}
+	if err := r.prepare(); err != nil {
+		return nil, err
 	}
 	relaxed, priced := r.relaxed, r.priced
 	for i := range relaxed {

@@ -129,3 +129,34 @@ func FuzzRestoreRepairState(f *testing.F) {
 		}
 	})
 }
+
+// TestResumeExactPlanSearch: with 20 agents the in-round repairs run the
+// plan search, whose elite plans and pair bounds carry over between
+// calls; a run broken at a checkpoint and resumed must end as the
+// uninterrupted one, so both are part of the repairer's saved state.
+func TestResumeExactPlanSearch(t *testing.T) {
+	if testing.Short() {
+		t.Skip("-short: two runs of a 20 x 100 instance")
+	}
+	in, err := Generate('d', 20, 100, 9)
+	if err != nil {
+		t.Fatal(err)
+	}
+	mk := func() *decomp.Problem {
+		t.Helper()
+		p, err := NewProblem(in, Options{Relaxation: KnapsackRelaxation, FinalImprove: heuristics.ImproveSettings{Moves: 300, PairNodes: -1}})
+		if err != nil {
+			t.Fatal(err)
+		}
+		return p
+	}
+	s := decomp.Settings{Rounds: 90, Seed: 5, Gap: -1, Evaluator: decomp.Pool{Workers: 2}, Workers: 2}
+	ref, err := decomp.Solve(context.Background(), mk(), s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if res := resumeAt(t, mk, s, 46); !sameRun(ref, res) {
+		t.Fatalf("resumed at 46: %s after %d rounds, plan %v bound %v; uninterrupted %s after %d, plan %v bound %v",
+			res.Status, res.Rounds, res.Plan.Value, res.Bound, ref.Status, ref.Rounds, ref.Plan.Value, ref.Bound)
+	}
+}
