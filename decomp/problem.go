@@ -209,6 +209,11 @@ type RepairInput struct {
 	BoundPrices []float64
 	Best        *Plan  // best plan so far, or nil
 	Seed        uint64 // derived from Settings.Seed and Round, for reproducible randomness
+	// Primal, when the price rule builds one (see PrimalAverager), is an
+	// approximate fractional primal solution: per block, its variables at
+	// their averaged values (numbered as in Answer.Primal). Nil otherwise.
+	// A repairer may use it to rank choices; it is the repairer's own copy.
+	Primal [][]Entry
 }
 
 // Repairer turns block answers into a feasible plan. It returns nil (and no

@@ -625,13 +625,33 @@ func (r *runner) repairInput(round int, final, copyState bool) *RepairInput {
 	if copyState {
 		in.Prices = append([]float64(nil), r.st.Prices...)
 		in.BoundPrices = append([]float64(nil), r.st.BestPrices...)
-		in.Answers = make([]Answer, len(r.answers))
-		for k, a := range r.answers {
-			in.Answers[k] = Answer{Value: a.Value, Cost: a.Cost,
-				Use: append([]Entry(nil), a.Use...), Primal: append([]Entry(nil), a.Primal...)}
-		}
+		in.Answers = copyAnswers(r.answers)
+	}
+	if pa, ok := r.s.Method.(PrimalAverager); ok {
+		in.Primal = pa.AveragePrimal()
 	}
 	return in
+}
+
+// copyAnswers copies answers into one backing array for all their
+// entries, so that a round of many tiny blocks costs two allocations, not
+// two per block.
+func copyAnswers(answers []Answer) []Answer {
+	n := 0
+	for _, a := range answers {
+		n += len(a.Use) + len(a.Primal)
+	}
+	slab := make([]Entry, 0, n)
+	out := make([]Answer, len(answers))
+	for k, a := range answers {
+		start := len(slab)
+		slab = append(slab, a.Use...)
+		use := slab[start:len(slab):len(slab)]
+		start = len(slab)
+		slab = append(slab, a.Primal...)
+		out[k] = Answer{Value: a.Value, Cost: a.Cost, Use: use, Primal: slab[start:len(slab):len(slab)]}
+	}
+	return out
 }
 
 // repairOutcome is a finished repair waiting to be merged.

@@ -142,6 +142,27 @@ type Demo interface {
 	Scenarios() []Scenario
 }
 
+// Adjuster is a model whose shared resources can be changed, for what-if
+// questions ("pincer whatif"). Resources are named as Resources names
+// them (a family may accept other names too, such as an id).
+type Adjuster interface {
+	// Capacity returns the named resource's capacity.
+	Capacity(resource string) (float64, error)
+	// WithCapacity returns a copy of the model with the named resource's
+	// capacity set; the copy shares nothing mutable with the model. A
+	// capacity the family cannot take (negative, or not whole where the
+	// data are whole) is an error.
+	WithCapacity(resource string, capacity float64) (Model, error)
+}
+
+// Switcher is a model whose named parts (facility sites, say) can be
+// forced open or closed, for what-if questions.
+type Switcher interface {
+	// WithSwitch returns a copy of the model with the named part forced
+	// open (open true) or closed; the copy shares nothing mutable.
+	WithSwitch(part string, open bool) (Model, error)
+}
+
 // Kind is the type of an option's value.
 type Kind int8
 

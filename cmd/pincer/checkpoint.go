@@ -102,6 +102,11 @@ func runFingerprint(f *runFlags) string {
 	parts = append(parts,
 		fmt.Sprintf("rounds=%d", f.rounds), fmt.Sprintf("gap=%v", f.gap), fmt.Sprintf("seed=%d", f.seed),
 		fmt.Sprintf("repair-every=%d", f.repairEvery), fmt.Sprintf("stall=%d", f.stall))
+	if f.rule != decomp.Rules()[0] {
+		// The default rule is left out, so checkpoints written before
+		// rules could be chosen still match.
+		parts = append(parts, "rule="+f.rule)
+	}
 	return strings.Join(parts, " ")
 }
 

@@ -96,6 +96,6 @@ practice before use.`,
 	root.SetFlagErrorFunc(flagHint)
 	root.SetOut(stdout)
 	root.SetErr(stderr)
-	root.AddCommand(newSolveCmd(chosen), newVerifyCmd(chosen), newExportCmd(chosen), newGenCmd(), newDemoCmd(), newVersionCmd())
+	root.AddCommand(newSolveCmd(chosen), newVerifyCmd(chosen), newExportCmd(chosen), newWhatifCmd(chosen), newGenCmd(), newDemoCmd(), newVersionCmd())
 	return root
 }

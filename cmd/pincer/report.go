@@ -71,22 +71,51 @@ type report struct {
 	BoundKind     string `json:"bound_kind"`
 	// RoundedBound is the bound rounded to the next integer toward the
 	// plan when the objective is integral (null otherwise).
-	RoundedBound  *num           `json:"rounded_bound"`
-	Gap           num            `json:"gap"`
-	ProvedOptimal bool           `json:"proved_optimal"`
-	Stop          string         `json:"stop"`
-	Rounds        int            `json:"rounds"`
-	Seconds       num            `json:"seconds"`
-	Workers       int            `json:"workers"`
-	Seed          uint64         `json:"seed"`
-	Caution       string         `json:"caution"`
-	Rows          []rowJSON      `json:"rows"`
-	Family        map[string]any `json:"family"`
-	History       []historyJSON  `json:"history"`
+	RoundedBound  *num   `json:"rounded_bound"`
+	Gap           num    `json:"gap"`
+	ProvedOptimal bool   `json:"proved_optimal"`
+	Stop          string `json:"stop"`
+	Rounds        int    `json:"rounds"`
+	Seconds       num    `json:"seconds"`
+	Workers       int    `json:"workers"`
+	Seed          uint64 `json:"seed"`
+	Rule          string `json:"rule"` // the price-update rule
+	// WarmStart says where the starting prices came from (null: zero).
+	WarmStart *warmJSON `json:"warm_start"`
+	// PrimalAverage is the volume rule's fractional primal solution, when
+	// asked for (--primal-average): per block, its variables at their
+	// averaged values, numbered as the family documents its blocks.
+	PrimalAverage []primalBlockJSON `json:"primal_average,omitempty"`
+	Caution       string            `json:"caution"`
+	Rows          []rowJSON         `json:"rows"`
+	Family        map[string]any    `json:"family"`
+	History       []historyJSON     `json:"history"`
 	// HistoryKept says which rounds history holds: "full" or "summary"
 	// (every improvement plus a thinned trace).
 	HistoryKept string `json:"history_kept"`
 	Plan        any    `json:"plan"`
+}
+
+type primalBlockJSON struct {
+	Block int           `json:"block"` // 1-based, in the family's block order
+	Vars  []primalJSONE `json:"vars"`
+}
+
+type primalJSONE struct {
+	Var   int  `json:"var"` // the block's own variable number (0-based)
+	Value rnum `json:"value"`
+}
+
+func primalJSON(p [][]decomp.Entry) []primalBlockJSON {
+	out := make([]primalBlockJSON, 0, len(p))
+	for k, entries := range p {
+		b := primalBlockJSON{Block: k + 1, Vars: make([]primalJSONE, len(entries))}
+		for i, e := range entries {
+			b.Vars[i] = primalJSONE{Var: e.Index, Value: rnum(e.Value)}
+		}
+		out = append(out, b)
+	}
+	return out
 }
 
 func buildReport(format, file string, index, workers int, seed uint64, full bool, m instances.Model, res *decomp.Result) (*report, error) {

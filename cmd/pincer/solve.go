@@ -8,6 +8,8 @@ import (
 	"math"
 	"os"
 	"runtime"
+	"slices"
+	"strings"
 	"time"
 
 	"github.com/rs/zerolog"
@@ -35,7 +37,11 @@ type runFlags struct {
 	repairEvery int
 	stall       int
 	history     string
+	rule        string
+	plot        string
+	primal      bool
 	checkpoints checkpointFlags // solve only
+	warm        warmFlags       // solve only
 }
 
 func (f *runFlags) register(cmd *cobra.Command) {
@@ -52,8 +58,11 @@ func (f *runFlags) register(cmd *cobra.Command) {
 	fl.IntVar(&f.top, "top", 5, "shared resources listed in the summary (at least 0)")
 	fl.IntVar(&f.repairEvery, "repair-every", 0, "repair every this many rounds (0: engine default; at least 0)")
 	fl.IntVar(&f.stall, "stall", 0, "stop after this many rounds without a better bound or plan (0: engine default, 300; at least 0)")
+	fl.StringVar(&f.rule, "rule", decomp.Rules()[0], "price-update rule: "+strings.Join(decomp.Rules(), ", "))
+	fl.BoolVar(&f.primal, "primal-average", false, "add the volume rule's averaged (fractional) block answers to the report as primal_average (needs --rule volume)")
+	fl.StringVar(&f.plot, "plot", "", "draw bound, plan value and the most binding rows' prices over time as SVG to this file")
 	fl.StringVar(&f.history, "history", "summary", "report history: summary (every improvement plus a thinned trace, at most 2000 rounds) or full")
-	for name, vals := range map[string][]string{"log-format": {"text", "json"}, "history": {"summary", "full"}} {
+	for name, vals := range map[string][]string{"log-format": {"text", "json"}, "history": {"summary", "full"}, "rule": decomp.Rules()} {
 		vals := vals
 		_ = cmd.RegisterFlagCompletionFunc(name, func(*cobra.Command, []string, string) ([]string, cobra.ShellCompDirective) {
 			return vals, cobra.ShellCompDirectiveNoFileComp
@@ -71,6 +80,10 @@ func (f *runFlags) check() error {
 		return bad("log-format", f.logFormat, "one of text, json")
 	case f.history != "summary" && f.history != "full":
 		return bad("history", f.history, "one of summary, full")
+	case !slices.Contains(decomp.Rules(), f.rule):
+		return bad("rule", f.rule, "one of "+strings.Join(decomp.Rules(), ", "))
+	case f.primal && f.rule != "volume":
+		return badInput(fmt.Errorf("--primal-average needs --rule volume (the rule that builds it), not %s", f.rule))
 	case f.workers < 1:
 		return bad("workers", f.workers, "at least 1")
 	case f.time < 0:
@@ -89,6 +102,12 @@ func (f *runFlags) check() error {
 		return badInput(errors.New("--report and --plan cannot both be - (standard output)"))
 	}
 	if err := checkWritable("--report", f.report); err != nil {
+		return err
+	}
+	if f.plot == stdoutPath {
+		return badInput(errors.New("--plot -: the plot must go to a file"))
+	}
+	if err := checkWritable("--plot", f.plot); err != nil {
 		return err
 	}
 	return checkWritable("--plan", f.plan)
@@ -121,6 +140,9 @@ func newSolveCmd(chosen string) *cobra.Command {
 			if err := f.checkpoints.check(); err != nil {
 				return err
 			}
+			if err := f.warm.check(f.checkpoints.resume); err != nil {
+				return err
+			}
 			m, err := load(f.format, args[0], f.opts)
 			if err != nil {
 				return err
@@ -135,6 +157,7 @@ func newSolveCmd(chosen string) *cobra.Command {
 	f.opts = familyOptions(cmd, &f.format, chosen)
 	f.register(cmd)
 	f.checkpoints.register(cmd)
+	f.warm.register(cmd)
 	return cmd
 }
 
@@ -150,12 +173,33 @@ func solveModel(ctx context.Context, stdout, stderr io.Writer, f *runFlags, file
 		Gap: f.gap, Time: f.time, Rounds: f.rounds, Seed: f.seed, RepairEvery: f.repairEvery, StallRounds: f.stall,
 		Workers: f.workers, Evaluator: decomp.Pool{Workers: f.workers},
 	}
+	if settings.Method, err = decomp.NewMethod(f.rule); err != nil {
+		return nil, badInput(err)
+	}
+	if err := ruleFits(f.rule, p); err != nil {
+		return nil, err
+	}
+	var warm *warmJSON
+	if f.warm.path != "" {
+		if warm, err = applyWarmStart(f.warm.path, f.format, m, p); err != nil {
+			return nil, err
+		}
+	}
 	if f.gap == 0 {
 		settings.Gap = -1 // run to proof or a limit
 	}
 	prog := newProgress(stderr, f)
+	var obs observers
 	if prog != nil {
-		settings.Observer = prog
+		obs = append(obs, prog)
+	}
+	var trace *priceTrace
+	if f.plot != "" {
+		trace = newPriceTrace(len(p.Rows))
+		obs = append(obs, trace)
+	}
+	if len(obs) > 0 {
+		settings.Observer = obs
 	}
 	state, err := prepareCheckpoints(f, file, p, &settings)
 	if err != nil {
@@ -175,8 +219,19 @@ func solveModel(ctx context.Context, stdout, stderr io.Writer, f *runFlags, file
 	if err := printSummary(summary, m, p.IntegralObjective, res, f.top); err != nil {
 		return res, &exitError{code: exitInternal, err: err}
 	}
+	if f.plot != "" {
+		if err := writePlotFile(f.plot, m.Name(), res, trace, f.top); err != nil {
+			return res, &exitError{code: exitInternal, err: err}
+		}
+	}
 	if f.report != "" {
 		rep, err := buildReport(f.format, file, f.opts.values().Int("index"), f.workers, f.seed, f.history == "full", m, res)
+		if rep != nil {
+			rep.Rule, rep.WarmStart = f.rule, warm
+			if pa, ok := settings.Method.(decomp.PrimalAverager); ok && f.primal {
+				rep.PrimalAverage = primalJSON(pa.AveragePrimal())
+			}
+		}
 		if err != nil {
 			return res, &exitError{code: exitInternal, err: err}
 		}
