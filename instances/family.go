@@ -351,3 +351,10 @@ func (e *ParseError) Error() string {
 
 // Unwrap returns the underlying cause.
 func (e *ParseError) Unwrap() error { return e.Err }
+
+// Exact is a model that can be searched to proof (solve --exact): a
+// Lagrangian branch and bound over its problem (decomp.Search), with the
+// model's brancher splitting the nodes on the family's own variables.
+type Exact interface {
+	Brancher() (decomp.Brancher, error)
+}
