@@ -244,7 +244,6 @@ func (h *nodeHeap) Pop() any {
 type evalOut struct {
 	res       *NodeResult
 	fixings   []Fixing // all the node's fixings, with the reduced-cost ones
-	rcFixed   int
 	penalties [][]Penalty
 	primal    [][]Entry
 	err       error
@@ -458,11 +457,15 @@ func Search(ctx context.Context, build func() (*Problem, error), br Brancher, s 
 				tree.CutOff++
 				continue
 			}
-			tree.Fixed += o.rcFixed
-			fixings := o.fixings
+			// Reduced-cost fixing at the cutoff after this node's repair.
+			fixings, nfixed, err := se.fixByCost(o)
+			if err != nil {
+				return nil, fmt.Errorf("decomp: search: node %d: %w", nd.id, err)
+			}
+			tree.Fixed += nfixed
 			own := fixChain{fix: nil}
 			if nd.id == 0 {
-				tree.RootFixed = o.rcFixed
+				tree.RootFixed = nfixed
 				rootFix = &fixChain{fix: slices.Clone(fixings)}
 			} else {
 				// The node's reduced-cost fixings are passed on to its
@@ -632,6 +635,7 @@ func (se *search) shrink(open *nodeHeap, keep int, tree *TreeSummary) {
 
 // evaluate bounds one node on a worker's problem copy.
 func (se *search) evaluate(ctx context.Context, p *Problem, nd *searchNode, rootFix *fixChain, cutoff float64, hasCutoff bool) evalOut {
+	// The cutoff bounds the ascent; reduced-cost fixing happens at the merge.
 	fix := rootFix.collect(nil)
 	fix = nd.parentFixings(fix)
 	fix = append(fix, nd.fix...)
@@ -683,18 +687,25 @@ func (se *search) evaluate(ctx context.Context, p *Problem, nd *searchNode, root
 		return evalOut{err: fmt.Errorf("decomp: search: node %d: %w", nd.id, err)}
 	}
 	out.penalties = pen
-	if hasCutoff {
-		add := fixingsFrom(pen, p.Sense, res.Bound, cutoff)
-		if len(add) > 0 {
-			out.rcFixed = len(add)
-			fix = append(fix, add...)
-			if err := SortFixings(fix); err != nil {
-				return evalOut{err: fmt.Errorf("decomp: search: node %d: reduced-cost fixing contradicts a fixing: %w", nd.id, err)}
-			}
-			out.fixings = fix
-		}
-	}
 	return out
+}
+
+// fixByCost adds the reduced-cost fixings of a node at the current cutoff
+// to its fixings (sorted); it returns them and how many were added.
+func (se *search) fixByCost(o *evalOut) ([]Fixing, int, error) {
+	c, ok := se.cutoff()
+	if !ok || o.penalties == nil {
+		return o.fixings, 0, nil
+	}
+	add := fixingsFrom(o.penalties, se.main.Sense, o.res.Bound, c)
+	if len(add) == 0 {
+		return o.fixings, 0, nil
+	}
+	fix := append(slices.Clone(o.fixings), add...)
+	if err := SortFixings(fix); err != nil {
+		return nil, 0, fmt.Errorf("reduced-cost fixing contradicts a fixing: %w", err)
+	}
+	return fix, len(add), nil
 }
 
 func (nd *searchNode) parentFixings(dst []Fixing) []Fixing { return nd.parent.collect(dst) }
