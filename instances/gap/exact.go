@@ -7,6 +7,7 @@ import (
 	"slices"
 
 	"pincer/decomp"
+	"pincer/heuristics"
 )
 
 var _ decomp.Penalizer = (*agentBlock)(nil)
@@ -151,6 +152,22 @@ const (
 	// child.
 	PairRule
 )
+
+// ExactProblem is the problem of the exact search (instances.Exact): the
+// model's own, with the repair at nodes kept to a descent and a short
+// tabu search (the search repairs at every node, and its plans improve
+// as it dives).
+func (m *Model) ExactProblem() (*decomp.Problem, error) {
+	return NewProblem(m.In, ExactOptions(m.In, m.Opt))
+}
+
+// ExactOptions are opt with the node repair effort of the exact search.
+func ExactOptions(in *Instance, opt Options) Options {
+	if opt.Improve == (heuristics.ImproveSettings{}) {
+		opt.Improve = heuristics.ImproveSettings{Moves: -1, PairNodes: -1}
+	}
+	return opt
+}
 
 // Brancher returns the exact search's brancher for the model's problem
 // (it implements instances.Exact).
