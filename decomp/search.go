@@ -342,7 +342,7 @@ func Search(ctx context.Context, build func() (*Problem, error), br Brancher, s 
 		if s.Progress == nil {
 			return
 		}
-		sp := &SearchProgress{Nodes: tree.Nodes, Open: open.Len() + len(dives), Bound: se.globalBound(open, dives), Elapsed: time.Since(start), Incumbent: math.NaN()}
+		sp := &SearchProgress{Nodes: tree.Nodes, Open: open.Len() + len(dives), Bound: sg * se.globalBound(open, dives), Elapsed: time.Since(start), Incumbent: math.NaN()}
 		if se.inc != nil {
 			sp.Incumbent, sp.HasIncumbent = se.inc.Value, true
 		}
