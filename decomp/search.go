@@ -697,10 +697,13 @@ func (se *search) fixByCost(o *evalOut) ([]Fixing, int, error) {
 	if !ok || o.penalties == nil {
 		return o.fixings, 0, nil
 	}
-	add := fixingsFrom(o.penalties, se.main.Sense, o.res.Bound, c)
+	add, lift := fixingsFrom(o.penalties, se.main.Sense, o.res.Bound, c)
 	if len(add) == 0 {
 		return o.fixings, 0, nil
 	}
+	// The plans the fixings exclude are bounded by the smallest lifted
+	// bound: it joins the global bound like a closed leaf.
+	se.closeLeaf(lift)
 	fix := append(slices.Clone(o.fixings), add...)
 	if err := SortFixings(fix); err != nil {
 		return nil, 0, fmt.Errorf("reduced-cost fixing contradicts a fixing: %w", err)
@@ -768,20 +771,28 @@ func penalties(ctx context.Context, p *Problem, prices []float64, answers []Answ
 // fixingsFrom returns the reduced-cost fixings: a variable whose forcing
 // would lift bound past threshold (in the problem's sense) is fixed to its
 // other value. Penalties are of binary variables.
-func fixingsFrom(pen [][]Penalty, sense Sense, bound, threshold float64) []Fixing {
+//
+// The test is strict beyond a tolerance of 1e-9 relative, so that rounding
+// in the bound never fixes a variable whose forcing only ties the
+// threshold. It also returns the smallest lifted bound of the fixed
+// variables (minimising terms; +Inf when none is fixed).
+func fixingsFrom(pen [][]Penalty, sense Sense, bound, threshold float64) ([]Fixing, float64) {
 	sg := 1.0
 	if sense == Maximise {
 		sg = -1
 	}
+	limit := sg*threshold + 1e-9*math.Max(1, math.Abs(threshold))
+	lift := math.Inf(1)
 	var out []Fixing
 	for k, ps := range pen {
 		for _, q := range ps {
-			if q.Delta > 0 && sg*bound+q.Delta > sg*threshold {
+			if l := sg*bound + q.Delta; q.Delta > 0 && l > limit {
 				out = append(out, Fixing{Block: k, Var: q.Var, Value: 1 - q.Value})
+				lift = math.Min(lift, l)
 			}
 		}
 	}
-	return out
+	return out, lift
 }
 
 // ReducedCostFixings returns the variables that reduced costs fix: with
@@ -796,7 +807,8 @@ func ReducedCostFixings(ctx context.Context, p *Problem, prices []float64, answe
 	if err != nil {
 		return nil, err
 	}
-	return fixingsFrom(pen, p.Sense, bound, threshold), nil
+	fix, _ := fixingsFrom(pen, p.Sense, bound, threshold)
+	return fix, nil
 }
 
 // penIndex finds a node's penalties by block and variable.
