@@ -17,7 +17,7 @@ import (
 // exact search from there, as solve --exact does.
 func solveExact(t testing.TB, in *Instance, opt Options, workers int, rule BranchRule) *decomp.SearchResult {
 	t.Helper()
-	build := func() (*decomp.Problem, error) { return NewProblem(in, ExactOptions(in, opt)) }
+	build := func() (*decomp.Problem, error) { return NewExactProblem(in, opt) }
 	res, err := decomp.Search(context.Background(), build, NewBrancher(in, opt, rule), decomp.SearchSettings{
 		Time: 60 * time.Second, Workers: workers, Seed: 1})
 	if err != nil {
@@ -122,7 +122,7 @@ func TestExactBruteForce(t *testing.T) {
 		in := tinyInstance(rng, c%4 == 3)
 		opt := Options{Maximise: c%2 == 1, Relaxation: Relaxation((c / 2) % 2)}
 		want, plans := optimalPlans(in, opt.Maximise, nil)
-		build := func() (*decomp.Problem, error) { return NewProblem(in, ExactOptions(in, opt)) }
+		build := func() (*decomp.Problem, error) { return NewExactProblem(in, opt) }
 		var first *decomp.SearchResult
 		for _, s := range []decomp.SearchSettings{{Workers: 1}, {Workers: 3}, {Workers: 1, NoFixing: true}, {Workers: 2, Batch: 1, RootRounds: 3, NodeRounds: 2}} {
 			s.Seed = 1
