@@ -497,6 +497,9 @@ func Search(ctx context.Context, build func() (*Problem, error), br Brancher, s 
 			}
 			pen := penaltyIndex(o.penalties)
 			for ci, cf := range b.Children {
+				if !addsFixing(cf, fixings) {
+					return nil, fmt.Errorf("decomp: search: the brancher's child %d of node %d fixes nothing new (the tree would not end)", ci, nd.id)
+				}
 				child := &searchNode{id: nextID, depth: nd.depth + 1, parent: chain, fix: cf, prices: r.Prices, key: bound}
 				nextID++
 				if !s.NoFixing {
@@ -858,4 +861,17 @@ func (pi penIndex) lift(child, have []Fixing) float64 {
 		sum += q.Delta
 	}
 	return sum
+}
+
+// addsFixing reports whether child fixes a variable that the sorted
+// fixings have leaves free (or fixes to another value).
+func addsFixing(child, have []Fixing) bool {
+	for _, f := range child {
+		g := FixingsOf(have, f.Block)
+		i := sort.Search(len(g), func(i int) bool { return g[i].Var >= f.Var })
+		if i == len(g) || g[i].Var != f.Var || g[i].Value != f.Value {
+			return true
+		}
+	}
+	return false
 }
