@@ -77,3 +77,54 @@ func TestExactCap41(t *testing.T) {
 		}
 	}
 }
+
+// TestReducedCostFixingKeepsOptima: with the brute-force optimum as
+// threshold, every site that reduced costs fix (site relaxation, at the
+// prices of a short ascent) is fixed the way every optimal plan has it:
+// forcing it the other way makes the optimum (brute force over the open
+// sets with gonum's simplex) strictly worse.
+func TestReducedCostFixingKeepsOptima(t *testing.T) {
+	seen := 0
+	for c := 0; c < 30; c++ {
+		in, err := Generate(3+c%4, 4+c%5, 1.3+0.4*float64(c%4), uint64(500+c))
+		if err != nil {
+			t.Fatal(err)
+		}
+		want := bruteSplit(t, in)
+		p, err := NewProblem(in, Options{Relaxation: SiteRelaxation})
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, rounds := range []int{5, 60} {
+			res, err := decomp.SolveNode(context.Background(), p, decomp.NodeSettings{Rounds: rounds, KeepBest: true})
+			if err != nil || !res.HasBound {
+				t.Fatal(err)
+			}
+			fix, err := decomp.ReducedCostFixings(context.Background(), p, res.Prices, res.BestAnswers, res.Bound, want)
+			if err != nil {
+				t.Fatal(err)
+			}
+			for _, f := range fix {
+				other := make([]siteFix, len(in.Sites))
+				other[f.Block].y = 1 - f.Value
+				for i := range other {
+					if i != f.Block {
+						other[i].y = -1
+					}
+				}
+				fin, ok := fixedInstance(in, other)
+				if !ok {
+					continue
+				}
+				if alt := bruteSplit(t, fin); alt <= want*(1+1e-9) {
+					t.Fatalf("case %d: site %d fixed to %v, but with it %v the optimum is %v (overall %v)", c, f.Block, f.Value, 1-f.Value, alt, want)
+				}
+				seen++
+			}
+		}
+	}
+	if seen < 20 {
+		t.Fatalf("only %d fixings checked: the check is too weak", seen)
+	}
+	t.Logf("%d site fixings checked", seen)
+}
