@@ -375,3 +375,15 @@ func (e *ParseError) Error() string {
 
 // Unwrap returns the underlying cause.
 func (e *ParseError) Unwrap() error { return e.Err }
+
+// Exact is a model that can be searched to proof (solve --exact): a
+// Lagrangian branch and bound over its problem (decomp.Search), with the
+// model's brancher splitting the nodes on the family's own variables.
+type Exact interface {
+	// ExactProblem builds a fresh copy of the problem the search bounds
+	// and repairs at its nodes (it may differ from Problem in repair
+	// effort only); the search calls it once per worker.
+	ExactProblem() (*decomp.Problem, error)
+	// Brancher returns the rule that splits a node.
+	Brancher() (decomp.Brancher, error)
+}

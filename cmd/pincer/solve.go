@@ -43,6 +43,7 @@ type runFlags struct {
 	primal      bool
 	checkpoints checkpointFlags // solve only
 	warm        warmFlags       // solve only
+	exact       exactFlags      // solve only
 }
 
 func (f *runFlags) register(cmd *cobra.Command) {
@@ -145,6 +146,9 @@ func newSolveCmd(chosen string) *cobra.Command {
 			if err := f.warm.check(f.checkpoints.resume); err != nil {
 				return err
 			}
+			if err := f.exact.check(&f); err != nil {
+				return err
+			}
 			m, err := load(f.format, args[0], f.opts)
 			if err != nil {
 				return err
@@ -167,6 +171,7 @@ func newSolveCmd(chosen string) *cobra.Command {
 	f.register(cmd)
 	f.checkpoints.register(cmd)
 	f.warm.register(cmd)
+	f.exact.register(cmd)
 	return cmd
 }
 
@@ -174,6 +179,9 @@ func newSolveCmd(chosen string) *cobra.Command {
 // report and plan, and maps the outcome to an exit code. When the report or
 // plan goes to standard output, the summary goes to stderr.
 func solveModel(ctx context.Context, stdout, stderr io.Writer, f *runFlags, file string, m instances.Model) (*decomp.Result, error) {
+	if f.exact.on {
+		return solveExact(ctx, stdout, stderr, f, file, m)
+	}
 	p, err := m.Problem()
 	if err != nil {
 		return nil, badInput(err)
