@@ -60,20 +60,20 @@ func readScenario(sites, customers, lanes io.Reader) (*Instance, error) {
 	in := &Instance{}
 	siteIndex := map[string]int{}
 	siteLine := map[string]int{}
-	err := readTable(sites, SitesFile, []string{"id", "capacity", "fixed_cost"},
-		func(row *csvRow) error {
-			id, err := row.id("id", "site id", siteLine)
+	err := instances.ReadCSVTable(sites, SitesFile, []string{"id", "capacity", "fixed_cost"},
+		func(row *instances.CSVRow) error {
+			id, err := row.ID("id", "site id", siteLine)
 			if err != nil {
 				return err
 			}
-			s := Site{ID: id, Name: row.text("name")}
-			if s.Capacity, err = row.number("capacity", "capacity of site "+id, false); err != nil {
+			s := Site{ID: id, Name: row.Text("name")}
+			if s.Capacity, err = csvNumber(row, "capacity", "capacity of site "+id, false); err != nil {
 				return err
 			}
-			if s.FixedCost, err = row.number("fixed_cost", "fixed cost of site "+id, false); err != nil {
+			if s.FixedCost, err = csvNumber(row, "fixed_cost", "fixed cost of site "+id, false); err != nil {
 				return err
 			}
-			switch w := strings.ToLower(row.text("status")); w {
+			switch w := strings.ToLower(row.Text("status")); w {
 			case "", "free":
 				s.Status = Free
 			case "open":
@@ -81,7 +81,7 @@ func readScenario(sites, customers, lanes io.Reader) (*Instance, error) {
 			case "closed":
 				s.Status = ForcedClosed
 			default:
-				return row.errorf("status", "status of site "+id+" (open, closed or free)", "got %q", row.text("status"))
+				return row.Errorf("status", "status of site "+id+" (open, closed or free)", "got %q", row.Text("status"))
 			}
 			siteIndex[id] = len(in.Sites)
 			in.Sites = append(in.Sites, s)
@@ -97,15 +97,15 @@ func readScenario(sites, customers, lanes io.Reader) (*Instance, error) {
 	custIndex := map[string]int{}
 	custLine := map[string]int{}
 	idCol, demandCol := 0, 0 // 1-based, for errors about a customer as a whole
-	err = readTable(customers, CustomersFile, []string{"id", "demand"},
-		func(row *csvRow) error {
-			id, err := row.id("id", "customer id", custLine)
+	err = instances.ReadCSVTable(customers, CustomersFile, []string{"id", "demand"},
+		func(row *instances.CSVRow) error {
+			id, err := row.ID("id", "customer id", custLine)
 			if err != nil {
 				return err
 			}
-			idCol, demandCol = row.col["id"]+1, row.col["demand"]+1
-			c := Customer{ID: id, Name: row.text("name")}
-			if c.Demand, err = row.number("demand", "demand of customer "+id, true); err != nil {
+			idCol, demandCol = row.Token("id"), row.Token("demand")
+			c := Customer{ID: id, Name: row.Text("name")}
+			if c.Demand, err = csvNumber(row, "demand", "demand of customer "+id, true); err != nil {
 				return err
 			}
 			custIndex[id] = len(in.Customers)
@@ -128,29 +128,29 @@ func readScenario(sites, customers, lanes io.Reader) (*Instance, error) {
 		}
 	}
 	laneLine := map[[2]int]int{}
-	err = readTable(lanes, LanesFile, []string{"site", "customer", "unit_cost"},
-		func(row *csvRow) error {
-			sid, cid := row.text("site"), row.text("customer")
+	err = instances.ReadCSVTable(lanes, LanesFile, []string{"site", "customer", "unit_cost"},
+		func(row *instances.CSVRow) error {
+			sid, cid := row.Text("site"), row.Text("customer")
 			i, ok := siteIndex[sid]
 			if !ok {
-				return row.errorf("site", "a site id from "+SitesFile, "got %q", sid)
+				return row.Errorf("site", "a site id from "+SitesFile, "got %q", sid)
 			}
 			j, ok := custIndex[cid]
 			if !ok {
-				return row.errorf("customer", "a customer id from "+CustomersFile, "got %q", cid)
+				return row.Errorf("customer", "a customer id from "+CustomersFile, "got %q", cid)
 			}
 			if l, dup := laneLine[[2]int{i, j}]; dup {
-				return row.errorf("site", "one row per lane", "lane %s → %s already given on line %d", sid, cid, l)
+				return row.Errorf("site", "one row per lane", "lane %s → %s already given on line %d", sid, cid, l)
 			}
-			laneLine[[2]int{i, j}] = row.line
-			u, err := row.number("unit_cost", "unit cost of lane "+sid+" → "+cid, false)
+			laneLine[[2]int{i, j}] = row.Line
+			u, err := csvNumber(row, "unit_cost", "unit cost of lane "+sid+" → "+cid, false)
 			if err != nil {
 				return err
 			}
 			in.Cost[i][j] = u * in.Customers[j].Demand
 			if math.IsInf(in.Cost[i][j], 0) {
-				return row.errorf("unit_cost", "unit cost of lane "+sid+" → "+cid+" whose cost of the whole demand is finite",
-					"got %q", row.text("unit_cost"))
+				return row.Errorf("unit_cost", "unit cost of lane "+sid+" → "+cid+" whose cost of the whole demand is finite",
+					"got %q", row.Text("unit_cost"))
 			}
 			return nil
 		})
@@ -195,134 +195,21 @@ func readScenario(sites, customers, lanes io.Reader) (*Instance, error) {
 	return in, nil
 }
 
-// csvRow is one data record of a table, with its header map.
-type csvRow struct {
-	file   string
-	line   int
-	col    map[string]int // column name → 0-based field index
-	fields []string
-	bytes  []int // 1-based byte column of each field
-}
-
-// text returns the trimmed field of the named column, or "" when the column
-// is absent or the record is short.
-func (r *csvRow) text(name string) string {
-	k, ok := r.col[name]
-	if !ok || k >= len(r.fields) {
-		return ""
-	}
-	return strings.TrimSpace(r.fields[k])
-}
-
-func (r *csvRow) errorf(name, expected, format string, args ...any) *ParseError {
-	k := r.col[name]
-	col := 0
-	if k < len(r.bytes) {
-		col = r.bytes[k]
-	}
-	return &ParseError{File: r.file, Line: r.line, Column: col, Token: k + 1, Expected: expected, Err: fmt.Errorf(format, args...)}
-}
-
-// id returns a non-empty id not seen before in this file.
-func (r *csvRow) id(name, what string, seen map[string]int) (string, error) {
-	id := r.text(name)
-	if id == "" {
-		return "", r.errorf(name, what, "the field is empty")
-	}
-	if l, dup := seen[id]; dup {
-		return "", r.errorf(name, "a "+what+" not used before", "%q is already used on line %d", id, l)
-	}
-	seen[id] = r.line
-	return id, nil
-}
-
 // number parses a finite non-negative (or positive) decimal number.
-func (r *csvRow) number(name, what string, positive bool) (float64, error) {
-	s := r.text(name)
+func csvNumber(r *instances.CSVRow, name, what string, positive bool) (float64, error) {
+	s := r.Text(name)
 	kind := " (non-negative number)"
 	if positive {
 		kind = " (positive number)"
 	}
 	if s == "" {
-		return 0, r.errorf(name, what+kind, "the field is empty")
+		return 0, r.Errorf(name, what+kind, "the field is empty")
 	}
 	v, ok := parseDecimal(s)
 	if !ok || v < 0 || (positive && v == 0) {
-		return 0, r.errorf(name, what+kind, "got %q", s)
+		return 0, r.Errorf(name, what+kind, "got %q", s)
 	}
 	return v, nil
-}
-
-// readTable reads a CSV table whose first record is a header, checks that
-// the required columns are present and calls row for every data record.
-func readTable(r io.Reader, file string, required []string, row func(*csvRow) error) error {
-	cr := csv.NewReader(r)
-	cr.FieldsPerRecord = -1
-	cr.ReuseRecord = false
-	header, err := cr.Read()
-	if err != nil {
-		if errors.Is(err, io.EOF) {
-			return &ParseError{File: file, Line: 1, Expected: "a header naming the columns " + strings.Join(required, ", "),
-				Err: errors.New("the file is empty")}
-		}
-		return csvError(file, err)
-	}
-	line, _ := cr.FieldPos(0)
-	cols := make(map[string]int, len(header))
-	for k, h := range header {
-		if k == 0 {
-			h = strings.TrimPrefix(h, "\ufeff") // byte order mark written by some spreadsheets
-		}
-		h = strings.ToLower(strings.TrimSpace(h))
-		if h == "" {
-			continue
-		}
-		if prev, dup := cols[h]; dup {
-			_, c := cr.FieldPos(k)
-			return &ParseError{File: file, Line: line, Column: c, Token: k + 1, Expected: "each column named once",
-				Err: fmt.Errorf("column %q is also column %d", h, prev+1)}
-		}
-		cols[h] = k
-	}
-	for _, name := range required {
-		if _, ok := cols[name]; !ok {
-			return &ParseError{File: file, Line: line, Expected: "a column named " + name + " in the header",
-				Err: fmt.Errorf("the header has %q", strings.Join(header, ","))}
-		}
-	}
-	for {
-		rec, err := cr.Read()
-		if errors.Is(err, io.EOF) {
-			return nil
-		}
-		if err != nil {
-			return csvError(file, err)
-		}
-		l, _ := cr.FieldPos(0)
-		rr := &csvRow{file: file, line: l, col: cols, fields: rec, bytes: make([]int, len(rec))}
-		for k := range rec {
-			_, rr.bytes[k] = cr.FieldPos(k)
-		}
-		for _, name := range required {
-			if k := cols[name]; k >= len(rec) {
-				return rr.errorf(name, name+" (field "+fmt.Sprint(k+1)+")",
-					"the record has only %d fields", len(rec))
-			}
-		}
-		if err := row(rr); err != nil {
-			return err
-		}
-	}
-}
-
-// csvError turns a syntax error of encoding/csv into a *ParseError; the field
-// is unknown, so the byte position goes into the message.
-func csvError(file string, err error) error {
-	var pe *csv.ParseError
-	if errors.As(err, &pe) {
-		return &ParseError{File: file, Line: pe.Line, Column: pe.Column, Expected: "a well-formed CSV record", Err: pe.Err}
-	}
-	return &ParseError{File: file, Expected: "a readable CSV file", Err: err}
 }
 
 // WriteScenario writes the instance as a scenario folder that ReadScenario

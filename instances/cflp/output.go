@@ -131,21 +131,21 @@ func ReadPlanCSV(r io.Reader, file string, in *Instance) (flow [][]float64, err 
 		flow[i] = make([]float64, len(in.Customers))
 	}
 	seen := map[[2]int]int{}
-	err = readTable(r, file, []string{"site", "customer", "quantity"}, func(row *csvRow) error {
-		sid, cid := row.text("site"), row.text("customer")
+	err = instances.ReadCSVTable(r, file, []string{"site", "customer", "quantity"}, func(row *instances.CSVRow) error {
+		sid, cid := row.Text("site"), row.Text("customer")
 		i, ok := siteIndex[sid]
 		if !ok {
-			return row.errorf("site", "a site id of instance "+in.Name, "got %q", sid)
+			return row.Errorf("site", "a site id of instance "+in.Name, "got %q", sid)
 		}
 		j, ok := custIndex[cid]
 		if !ok {
-			return row.errorf("customer", "a customer id of instance "+in.Name, "got %q", cid)
+			return row.Errorf("customer", "a customer id of instance "+in.Name, "got %q", cid)
 		}
 		if l, dup := seen[[2]int{i, j}]; dup {
-			return row.errorf("site", "one row per lane", "lane %s → %s already given on line %d", sid, cid, l)
+			return row.Errorf("site", "one row per lane", "lane %s → %s already given on line %d", sid, cid, l)
 		}
-		seen[[2]int{i, j}] = row.line
-		q, err := row.number("quantity", "quantity shipped on lane "+sid+" → "+cid, false)
+		seen[[2]int{i, j}] = row.Line
+		q, err := csvNumber(row, "quantity", "quantity shipped on lane "+sid+" → "+cid, false)
 		if err != nil {
 			return err
 		}

@@ -75,20 +75,20 @@ func readCSVTables(jobs, machines io.Reader, jobsFile, machinesFile string) (*In
 	in := &Instance{Objective: WeightedTardiness}
 	classIndex := map[string]int{}
 	classLine := map[string]int{}
-	err := csvReadTable(machines, machinesFile, []string{"class", "count"}, func(row *csvRow) error {
-		id, err := row.id("class", "class id", classLine)
+	err := instances.ReadCSVTable(machines, machinesFile, []string{"class", "count"}, func(row *instances.CSVRow) error {
+		id, err := row.ID("class", "a class id", classLine)
 		if err != nil {
 			return err
 		}
 		if strings.Contains(id, EligibleSeparator) {
-			return row.errorf("class", "a class id without \""+EligibleSeparator+"\" (it separates the eligible classes in "+filepath.Base(jobsFile)+")", "got %q", id)
+			return row.Errorf("class", "a class id without \""+EligibleSeparator+"\" (it separates the eligible classes in "+filepath.Base(jobsFile)+")", "got %q", id)
 		}
-		n, err := row.integer("count", "machine count of class "+id, 1, false)
+		n, err := csvInteger(row, "count", "machine count of class "+id, 1, false)
 		if err != nil {
 			return err
 		}
 		classIndex[id] = len(in.Classes)
-		in.Classes = append(in.Classes, Class{ID: id, Name: row.text("name"), Machines: n})
+		in.Classes = append(in.Classes, Class{ID: id, Name: row.Text("name"), Machines: n})
 		return nil
 	})
 	if err != nil {
@@ -99,25 +99,25 @@ func readCSVTables(jobs, machines io.Reader, jobsFile, machinesFile string) (*In
 	}
 
 	jobLine := map[string]int{}
-	err = csvReadTable(jobs, jobsFile, []string{"id", "processing_time", "weight", "due"}, func(row *csvRow) error {
-		id, err := row.id("id", "job id", jobLine)
+	err = instances.ReadCSVTable(jobs, jobsFile, []string{"id", "processing_time", "weight", "due"}, func(row *instances.CSVRow) error {
+		id, err := row.ID("id", "a job id", jobLine)
 		if err != nil {
 			return err
 		}
-		jb := Job{ID: id, Name: row.text("name")}
-		if jb.Processing, err = row.integer("processing_time", "processing time of job "+id, 1, false); err != nil {
+		jb := Job{ID: id, Name: row.Text("name")}
+		if jb.Processing, err = csvInteger(row, "processing_time", "processing time of job "+id, 1, false); err != nil {
 			return err
 		}
-		if jb.Weight, err = row.integer("weight", "weight of job "+id, 0, false); err != nil {
+		if jb.Weight, err = csvInteger(row, "weight", "weight of job "+id, 0, false); err != nil {
 			return err
 		}
-		if jb.Due, err = row.integer("due", "due date of job "+id, 0, false); err != nil {
+		if jb.Due, err = csvInteger(row, "due", "due date of job "+id, 0, false); err != nil {
 			return err
 		}
-		if jb.Release, err = row.integer("release", "release date of job "+id, 0, true); err != nil {
+		if jb.Release, err = csvInteger(row, "release", "release date of job "+id, 0, true); err != nil {
 			return err
 		}
-		if jb.Eligible, err = row.classList("eligible_classes", "eligible classes of job "+id, classIndex, machinesFile); err != nil {
+		if jb.Eligible, err = csvClassList(row, "eligible_classes", "eligible classes of job "+id, classIndex, machinesFile); err != nil {
 			return err
 		}
 		in.Jobs = append(in.Jobs, jb)
@@ -135,72 +135,28 @@ func readCSVTables(jobs, machines io.Reader, jobsFile, machinesFile string) (*In
 	return in, nil
 }
 
-// csvRow is one data record of a table, with its header map.
-type csvRow struct {
-	file   string
-	line   int
-	col    map[string]int // column name → 0-based field index
-	fields []string
-	bytes  []int // 1-based byte column of each field
-}
-
-// text returns the trimmed field of the named column, or "" when the column
-// is absent or the record is short.
-func (r *csvRow) text(name string) string {
-	k, ok := r.col[name]
-	if !ok || k >= len(r.fields) {
-		return ""
-	}
-	return strings.TrimSpace(r.fields[k])
-}
-
-func (r *csvRow) errorf(name, expected, format string, args ...any) *instances.ParseError {
-	k, ok := r.col[name]
-	col, tok := 0, 0
-	if ok {
-		tok = k + 1
-		if k < len(r.bytes) {
-			col = r.bytes[k]
-		}
-	}
-	return &instances.ParseError{File: r.file, Line: r.line, Column: col, Token: tok, Expected: expected, Err: fmt.Errorf(format, args...)}
-}
-
-// id returns a non-empty id not seen before in this file.
-func (r *csvRow) id(name, what string, seen map[string]int) (string, error) {
-	id := r.text(name)
-	if id == "" {
-		return "", r.errorf(name, "a "+what, "the field is empty")
-	}
-	if l, dup := seen[id]; dup {
-		return "", r.errorf(name, "a "+what+" not used before", "%q is already used on line %d", id, l)
-	}
-	seen[id] = r.line
-	return id, nil
-}
-
 // integer parses an integer in lo..MaxCSVNumber; an empty optional field
 // gives 0.
-func (r *csvRow) integer(name, what string, lo int, optional bool) (int, error) {
-	s := r.text(name)
+func csvInteger(r *instances.CSVRow, name, what string, lo int, optional bool) (int, error) {
+	s := r.Text(name)
 	kind := fmt.Sprintf(" (an integer from %d to %d)", lo, MaxCSVNumber)
 	if s == "" {
 		if optional {
 			return 0, nil
 		}
-		return 0, r.errorf(name, what+kind, "the field is empty")
+		return 0, r.Errorf(name, what+kind, "the field is empty")
 	}
 	v, err := strconv.Atoi(s)
 	if err != nil || v < lo || v > MaxCSVNumber {
-		return 0, r.errorf(name, what+kind, "got %q", s)
+		return 0, r.Errorf(name, what+kind, "got %q", s)
 	}
 	return v, nil
 }
 
 // classList parses a EligibleSeparator-separated list of class ids into
 // increasing class indices; an empty field gives nil (every class).
-func (r *csvRow) classList(name, what string, index map[string]int, classesFile string) ([]int, error) {
-	s := r.text(name)
+func csvClassList(r *instances.CSVRow, name, what string, index map[string]int, classesFile string) ([]int, error) {
+	s := r.Text(name)
 	if s == "" {
 		return nil, nil
 	}
@@ -210,88 +166,16 @@ func (r *csvRow) classList(name, what string, index map[string]int, classesFile 
 		id := strings.TrimSpace(part)
 		k, ok := index[id]
 		if !ok {
-			return nil, r.errorf(name, what+": class ids from "+filepath.Base(classesFile)+" separated by \""+EligibleSeparator+"\"", "unknown class %q in %q", id, s)
+			return nil, r.Errorf(name, what+": class ids from "+filepath.Base(classesFile)+" separated by \""+EligibleSeparator+"\"", "unknown class %q in %q", id, s)
 		}
 		if seen[k] {
-			return nil, r.errorf(name, what+": each class once", "class %q repeated in %q", id, s)
+			return nil, r.Errorf(name, what+": each class once", "class %q repeated in %q", id, s)
 		}
 		seen[k] = true
 		out = append(out, k)
 	}
 	sort.Ints(out)
 	return out, nil
-}
-
-// csvReadTable reads a CSV table whose first record is a header, checks
-// that the required columns are present and calls row for every data
-// record.
-func csvReadTable(r io.Reader, file string, required []string, row func(*csvRow) error) error {
-	cr := csv.NewReader(r)
-	cr.FieldsPerRecord = -1
-	header, err := cr.Read()
-	if err != nil {
-		if errors.Is(err, io.EOF) {
-			return &instances.ParseError{File: file, Line: 1, Expected: "a header naming the columns " + strings.Join(required, ", "),
-				Err: errors.New("the file is empty")}
-		}
-		return csvSyntaxError(file, err)
-	}
-	line, _ := cr.FieldPos(0)
-	cols := make(map[string]int, len(header))
-	for k, h := range header {
-		if k == 0 {
-			h = strings.TrimPrefix(h, "\ufeff") // byte order mark written by some spreadsheets
-		}
-		h = strings.ToLower(strings.TrimSpace(h))
-		if h == "" {
-			continue
-		}
-		if prev, dup := cols[h]; dup {
-			_, c := cr.FieldPos(k)
-			return &instances.ParseError{File: file, Line: line, Column: c, Token: k + 1, Expected: "each column named once",
-				Err: fmt.Errorf("column %q is also column %d", h, prev+1)}
-		}
-		cols[h] = k
-	}
-	for _, name := range required {
-		if _, ok := cols[name]; !ok {
-			return &instances.ParseError{File: file, Line: line, Column: 1, Expected: "a column named " + name + " in the header",
-				Err: fmt.Errorf("the header is %q", strings.Join(header, ","))}
-		}
-	}
-	for {
-		rec, err := cr.Read()
-		if errors.Is(err, io.EOF) {
-			return nil
-		}
-		if err != nil {
-			return csvSyntaxError(file, err)
-		}
-		l, _ := cr.FieldPos(0)
-		rr := &csvRow{file: file, line: l, col: cols, fields: rec, bytes: make([]int, len(rec))}
-		for k := range rec {
-			_, rr.bytes[k] = cr.FieldPos(k)
-		}
-		for _, name := range required {
-			if k := cols[name]; k >= len(rec) {
-				last := rr.bytes[len(rec)-1]
-				return &instances.ParseError{File: file, Line: l, Column: last, Token: k + 1,
-					Expected: fmt.Sprintf("a field %d (%s)", k+1, name), Err: fmt.Errorf("the record has only %d fields", len(rec))}
-			}
-		}
-		if err := row(rr); err != nil {
-			return err
-		}
-	}
-}
-
-// csvSyntaxError turns a syntax error of encoding/csv into a ParseError.
-func csvSyntaxError(file string, err error) error {
-	var pe *csv.ParseError
-	if errors.As(err, &pe) {
-		return &instances.ParseError{File: file, Line: max(pe.Line, 1), Column: max(pe.Column, 1), Expected: "a well-formed CSV record", Err: pe.Err}
-	}
-	return &instances.ParseError{File: file, Line: 1, Expected: "a readable CSV file", Err: err}
 }
 
 // WriteCSVFolder writes in as a jobs-csv folder that ReadCSVFolder reads

@@ -46,26 +46,26 @@ func ReadPlanCSV(r io.Reader, name string, in *Instance) (*PlanFile, error) {
 	for k, c := range in.Classes {
 		classIndex[c.ID] = k
 	}
-	err := csvReadTable(r, name, []string{"job", "class", "machine", "start"}, func(row *csvRow) error {
-		id := row.text("job")
+	err := instances.ReadCSVTable(r, name, []string{"job", "class", "machine", "start"}, func(row *instances.CSVRow) error {
+		id := row.Text("job")
 		j, ok := jobIndex[id]
 		if !ok {
-			return row.errorf("job", "a job id of instance "+in.Name, "got %q", id)
+			return row.Errorf("job", "a job id of instance "+in.Name, "got %q", id)
 		}
 		if pf.Line[j] != 0 {
-			return row.errorf("job", "each job once", "job %q is already on line %d", id, pf.Line[j])
+			return row.Errorf("job", "each job once", "job %q is already on line %d", id, pf.Line[j])
 		}
-		pf.Line[j] = row.line
-		cid := row.text("class")
+		pf.Line[j] = row.Line
+		cid := row.Text("class")
 		k, ok := classIndex[cid]
 		if !ok {
-			return row.errorf("class", "a class id of instance "+in.Name, "got %q", cid)
+			return row.Errorf("class", "a class id of instance "+in.Name, "got %q", cid)
 		}
-		m, err := row.integer("machine", "machine number of job "+id, 1, false)
+		m, err := csvInteger(row, "machine", "machine number of job "+id, 1, false)
 		if err != nil {
 			return err
 		}
-		st, err := row.integer("start", "start of job "+id, 0, false)
+		st, err := csvInteger(row, "start", "start of job "+id, 0, false)
 		if err != nil {
 			return err
 		}
@@ -75,10 +75,10 @@ func ReadPlanCSV(r io.Reader, name string, in *Instance) (*PlanFile, error) {
 			col string
 			to  *int
 		}{{"end", &pf.End[j]}, {"tardiness", &pf.Tardiness[j]}} {
-			if _, present := row.col[c.col]; !present {
+			if !row.Has(c.col) {
 				continue
 			}
-			v, err := row.integer(c.col, c.col+" of job "+id, 0, false)
+			v, err := csvInteger(row, c.col, c.col+" of job "+id, 0, false)
 			if err != nil {
 				return err
 			}
