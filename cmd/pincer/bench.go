@@ -269,14 +269,8 @@ func runBenchRow(ctx context.Context, f *benchFlags, rr resolvedRow, peerBin str
 		r.status, r.note = "error", err.Error()
 		return r
 	}
-	settings := decomp.Settings{
-		Gap: f.gap, Time: f.time, Seed: f.seed,
-		Workers: f.workers, Evaluator: decomp.Pool{Workers: f.workers},
-	}
-	if f.gap == 0 {
-		settings.Gap = -1 // run to proof or the limit
-	}
-	if settings.Method, err = decomp.NewMethod(f.rule); err != nil {
+	settings, err := engineSettings(f.gap, f.time, 0, f.seed, f.workers, f.rule)
+	if err != nil {
 		r.status, r.note = "error", err.Error()
 		return r
 	}

@@ -235,12 +235,7 @@ func (p *progress) search(sp *decomp.SearchProgress) {
 			plan = fmtNum(sp.Incumbent)
 		}
 		line := fmt.Sprintf("nodes %d  open %d  %.1fs  global bound %s  plan %s  gap %s", sp.Nodes, sp.Open, sp.Elapsed.Seconds(), fmtNum(sp.Bound), plan, fmtGap(gap))
-		pad := ""
-		if n := p.lastLine - len(line); n > 0 {
-			pad = fmt.Sprintf("%*s", n, "")
-		}
-		p.lastLine = len(line)
-		fmt.Fprintf(p.w, "\r%s%s", line, pad)
+		p.liveLine(line)
 		return
 	}
 	ev := p.log.Info().Int("nodes", sp.Nodes).Int("open", sp.Open).Float64("seconds", sp.Elapsed.Seconds()).Float64("global_bound", sp.Bound)

@@ -186,10 +186,11 @@ func solveModel(ctx context.Context, stdout, stderr io.Writer, f *runFlags, file
 	if err != nil {
 		return nil, badInput(err)
 	}
-	settings := decomp.Settings{
-		Gap: f.gap, Time: f.time, Rounds: f.rounds, Seed: f.seed, RepairEvery: f.repairEvery,
-		Workers: f.workers, Evaluator: decomp.Pool{Workers: f.workers},
+	settings, err := engineSettings(f.gap, f.time, f.rounds, f.seed, f.workers, f.rule)
+	if err != nil {
+		return nil, badInput(err)
 	}
+	settings.RepairEvery = f.repairEvery
 	if f.stallGiven {
 		// A stall stop the user asked for; without it a time limit is a
 		// budget (see decomp.Settings, the stall rule).
@@ -197,9 +198,6 @@ func solveModel(ctx context.Context, stdout, stderr io.Writer, f *runFlags, file
 		if f.stall == 0 {
 			settings.StallRounds = 300
 		}
-	}
-	if settings.Method, err = decomp.NewMethod(f.rule); err != nil {
-		return nil, badInput(err)
 	}
 	if err := ruleFits(f.rule, p); err != nil {
 		return nil, err
@@ -209,9 +207,6 @@ func solveModel(ctx context.Context, stdout, stderr io.Writer, f *runFlags, file
 		if warm, err = applyWarmStart(f.warm.path, f.format, m, p); err != nil {
 			return nil, err
 		}
-	}
-	if f.gap == 0 {
-		settings.Gap = -1 // run to proof or a limit
 	}
 	prog := newProgress(stderr, f)
 	var obs observers
@@ -335,12 +330,7 @@ func (p *progress) Observe(pr *decomp.Progress) {
 			plan = fmtNum(r.PlanValue)
 		}
 		line := fmt.Sprintf("round %d  %.1fs  bound %s  plan %s  gap %s", r.Round, r.Elapsed.Seconds(), fmtNum(r.Bound), plan, fmtGap(gap))
-		pad := ""
-		if n := p.lastLine - len(line); n > 0 {
-			pad = fmt.Sprintf("%*s", n, "")
-		}
-		p.lastLine = len(line)
-		fmt.Fprintf(p.w, "\r%s%s", line, pad)
+		p.liveLine(line)
 		return
 	}
 	ev := p.log.Info().Int("round", r.Round).Float64("seconds", r.Elapsed.Seconds()).Float64("bound", r.Bound)
@@ -348,6 +338,30 @@ func (p *progress) Observe(pr *decomp.Progress) {
 		ev = ev.Float64("plan", r.PlanValue).Str("gap", fmtGap(gap))
 	}
 	ev.Msg("progress")
+}
+
+// engineSettings are the engine settings every command that solves
+// shares: limits, seed, one worker budget and the price rule. A --gap of 0
+// means no gap stop: run to proof or a limit.
+func engineSettings(gap float64, limit time.Duration, rounds int, seed uint64, workers int, rule string) (decomp.Settings, error) {
+	s := decomp.Settings{Gap: gap, Time: limit, Rounds: rounds, Seed: seed, Workers: workers, Evaluator: decomp.Pool{Workers: workers}}
+	if gap == 0 {
+		s.Gap = -1
+	}
+	var err error
+	s.Method, err = decomp.NewMethod(rule)
+	return s, err
+}
+
+// liveLine overwrites the live line with line, blanking what is left of
+// a longer earlier one.
+func (p *progress) liveLine(line string) {
+	pad := ""
+	if n := p.lastLine - len(line); n > 0 {
+		pad = fmt.Sprintf("%*s", n, "")
+	}
+	p.lastLine = len(line)
+	fmt.Fprintf(p.w, "\r%s%s", line, pad)
 }
 
 // done ends the live line, or writes a final log line.

@@ -171,15 +171,6 @@ type whatifRow struct {
 }
 
 func runWhatif(ctx context.Context, stdout, stderr io.Writer, f *whatifFlags, m instances.Model, changes []change) error {
-	settings := func() (decomp.Settings, error) {
-		s := decomp.Settings{Gap: f.gap, Time: f.time, Rounds: f.rounds, Seed: f.seed, Workers: f.workers, Evaluator: decomp.Pool{Workers: f.workers}}
-		if f.gap == 0 {
-			s.Gap = -1
-		}
-		var err error
-		s.Method, err = decomp.NewMethod(f.rule)
-		return s, err
-	}
 	solve := func(m instances.Model, warm *decomp.Result) (*decomp.Result, error) {
 		p, err := m.Problem()
 		if err != nil {
@@ -188,7 +179,7 @@ func runWhatif(ctx context.Context, stdout, stderr io.Writer, f *whatifFlags, m 
 		if warm != nil && sameRows(p.Rows, warm.Rows) && len(warm.Prices) == len(p.Rows) {
 			p.Prices = append([]float64(nil), warm.Prices...)
 		}
-		s, err := settings()
+		s, err := engineSettings(f.gap, f.time, f.rounds, f.seed, f.workers, f.rule)
 		if err != nil {
 			return nil, badInput(err)
 		}
