@@ -2,7 +2,6 @@ package scheduling
 
 import (
 	"fmt"
-	"sort"
 
 	"pincer/decomp"
 	"pincer/instances"
@@ -133,15 +132,7 @@ func (m *Model) Problem() (*decomp.Problem, error) { return NewProblem(m.In, m.O
 // ScheduleOf returns a plan's schedule (nil for no plan) and an error when
 // the plan's Detail is not a *Schedule of this instance.
 func (m *Model) ScheduleOf(p *decomp.Plan) (*Schedule, error) {
-	if p == nil {
-		return nil, nil
-	}
-	s, ok := p.Detail.(*Schedule)
-	n := len(m.In.Jobs)
-	if !ok || s == nil || len(s.Class) != n || len(s.Machine) != n || len(s.Start) != n {
-		return nil, fmt.Errorf("scheduling: plan detail is %T, want a *scheduling.Schedule of %d jobs", p.Detail, n)
-	}
-	return s, nil
+	return ioScheduleOf(m.In, p)
 }
 
 // PlacedJob is one job of a plan in the JSON report.
@@ -158,36 +149,19 @@ type PlacedJob struct {
 
 // Placements lists a schedule's jobs by class, machine and start.
 func Placements(in *Instance, s *Schedule) []PlacedJob {
-	out := make([]PlacedJob, len(in.Jobs))
-	for j, jb := range in.Jobs {
+	out := make([]PlacedJob, 0, len(in.Jobs))
+	for _, j := range ioScheduleOrder(in, s) {
+		jb := in.Jobs[j]
 		end := s.Start[j] + jb.Processing
 		k := s.Class[j]
 		cls := ""
 		if k >= 0 && k < len(in.Classes) {
 			cls = in.Classes[k].ID
 		}
-		out[j] = PlacedJob{Job: jb.ID, Name: jb.Name, Class: cls, Machine: s.Machine[j] + 1, Start: s.Start[j], End: end,
-			Tardiness: max(0, end-jb.Due), Cost: in.Cost(j, end)}
+		out = append(out, PlacedJob{Job: jb.ID, Name: jb.Name, Class: cls, Machine: s.Machine[j] + 1, Start: s.Start[j], End: end,
+			Tardiness: max(0, end-jb.Due), Cost: in.Cost(j, end)})
 	}
-	order := make([]int, len(out))
-	for i := range order {
-		order[i] = i
-	}
-	sort.SliceStable(order, func(a, b int) bool {
-		x, y := order[a], order[b]
-		if s.Class[x] != s.Class[y] {
-			return s.Class[x] < s.Class[y]
-		}
-		if s.Machine[x] != s.Machine[y] {
-			return s.Machine[x] < s.Machine[y]
-		}
-		return s.Start[x] < s.Start[y]
-	})
-	sorted := make([]PlacedJob, len(out))
-	for i, j := range order {
-		sorted[i] = out[j]
-	}
-	return sorted
+	return out
 }
 
 // PlanJSON lists the placed jobs, by class, machine and start.
