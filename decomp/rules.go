@@ -248,9 +248,16 @@ func (m *Volume) AveragePrimal() [][]Entry {
 	if m.primal == nil {
 		return nil
 	}
+	n := 0
+	for _, p := range m.primal {
+		n += len(p)
+	}
+	slab := make([]Entry, 0, n) // one allocation for every block's copy
 	out := make([][]Entry, len(m.primal))
 	for k, p := range m.primal {
-		out[k] = append([]Entry(nil), p...)
+		start := len(slab)
+		slab = append(slab, p...)
+		out[k] = slab[start:len(slab):len(slab)]
 	}
 	return out
 }
