@@ -223,6 +223,12 @@ type RepairInput struct {
 	// (see Settings.StallRounds): the rounds wait for this repair, which
 	// may spend more effort than usual.
 	Stalled bool
+	// Fixings, in a repair at a node of a Search, are the node's fixings
+	// (the problem's own, the branching decisions and the reduced-cost
+	// fixings inherited), sorted by SortFixings: a plan the repairer
+	// returns must be feasible for the problem, but one that honours them
+	// is the node's own. Nil in a plain run.
+	Fixings []Fixing
 }
 
 // Repairer turns block answers into a feasible plan. It returns nil (and no

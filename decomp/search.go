@@ -81,11 +81,21 @@ type Brancher interface {
 type SearchSettings struct {
 	Time  time.Duration // wall-clock limit; 0 means none
 	Nodes int           // limit on nodes evaluated; 0 means none
-	// MaxOpen bounds the node store; 0 means 200000. When a new child
-	// finds it full, the store keeps the best-bound half and drops the
-	// rest; the best bound of the dropped nodes stays in the global bound
+	// Rounds bounds the dual ascent rounds summed over all nodes (each
+	// node counts at least one); 0 means none. Unlike Time it is a
+	// budget of work, so a search cut by it is reproducible: a repairer
+	// that searches inside a run uses it. A node's ascent is capped by
+	// what is left when its batch starts, so a batch may end up to
+	// Batch·NodeRounds past the budget at most.
+	Rounds int
+	// MaxOpen bounds the node store's count and MaxBytes its estimated
+	// memory (see NodeBytes); 0 means 200000 nodes and 512 MiB. When a
+	// new child finds the store full on either, the store keeps the
+	// best-bound half (of the count, or of the bytes) and drops the rest;
+	// the best bound of the dropped nodes stays in the global bound
 	// (which then cannot close), so the bound remains valid.
-	MaxOpen int
+	MaxOpen  int
+	MaxBytes int64
 	// Workers evaluate the nodes of a batch in parallel, each on its own
 	// copy of the problem; 0 means GOMAXPROCS.
 	Workers int
@@ -139,6 +149,8 @@ const (
 	// SearchStoreFull: the tree is exhausted but nodes were dropped from
 	// the full store, so the global bound may stay below the plan.
 	SearchStoreFull
+	// SearchWorkLimit: SearchSettings.Rounds ran out.
+	SearchWorkLimit
 )
 
 // String names the status as reports use it.
@@ -154,6 +166,8 @@ func (s SearchStatus) String() string {
 		return "interrupted"
 	case SearchStoreFull:
 		return "store-full"
+	case SearchWorkLimit:
+		return "work-limit"
 	}
 	return fmt.Sprintf("search-status(%d)", int(s))
 }
@@ -196,6 +210,24 @@ type TreeSummary struct {
 	// search, RootFixed those fixed at the root (valid for every node).
 	Fixed, RootFixed int
 	Plans            int // times the incumbent improved during the search
+	Rounds           int // dual ascent rounds over all nodes (at least one a node)
+	// OpenBytes is the store's estimated memory at the stop and PeakBytes
+	// its largest value (see NodeBytes).
+	OpenBytes, PeakBytes int64
+}
+
+// DefaultMaxBytes is the node store's memory bound when
+// SearchSettings.MaxBytes is 0.
+const DefaultMaxBytes = 512 << 20
+
+// NodeBytes estimates the memory an open node holds: its record, its
+// branching fixings, the reduced-cost fixings its parent passes on (nfix
+// fixings in all) and its warm prices (nprices). Siblings share their
+// parent's prices and fixings; each is counted with every sibling, so the
+// estimate errs high.
+func NodeBytes(nfix, nprices int) int64 {
+	const record = 136 // the node, its heap slot and its share of a chain link
+	return record + int64(nfix)*24 + int64(nprices)*8
 }
 
 // searchNode is an open node. Its fixings are its own plus its parent's
@@ -207,6 +239,7 @@ type searchNode struct {
 	fix    []Fixing  // this node's own branching fixings
 	prices []float64 // warm start (the parent's best prices)
 	key    float64   // valid bound, in minimising terms
+	bytes  int64     // NodeBytes estimate, counted while stored
 }
 
 type fixChain struct {
@@ -220,6 +253,38 @@ func (c *fixChain) collect(dst []Fixing) []Fixing {
 	}
 	return dst
 }
+
+// nodeStore is the bounded store of open nodes: a heap best bound first,
+// with the estimated bytes it holds.
+type nodeStore struct {
+	h           nodeHeap
+	bytes, peak int64
+	maxN        int
+	maxBytes    int64
+}
+
+func (st *nodeStore) Len() int { return st.h.Len() }
+
+func (st *nodeStore) push(nd *searchNode) {
+	if nd.bytes == 0 {
+		n := len(nd.fix)
+		if nd.parent != nil {
+			n += len(nd.parent.fix)
+		}
+		nd.bytes = NodeBytes(n, len(nd.prices))
+	}
+	heap.Push(&st.h, nd)
+	st.bytes += nd.bytes
+	st.peak = max(st.peak, st.bytes)
+}
+
+func (st *nodeStore) pop() *searchNode {
+	nd := heap.Pop(&st.h).(*searchNode)
+	st.bytes -= nd.bytes
+	return nd
+}
+
+func (st *nodeStore) full() bool { return st.h.Len() > st.maxN || st.bytes > st.maxBytes }
 
 // nodeHeap orders open nodes best bound first, ties by id.
 type nodeHeap []*searchNode
@@ -302,6 +367,10 @@ func Search(ctx context.Context, build func() (*Problem, error), br Brancher, s 
 	if maxOpen <= 0 {
 		maxOpen = 200000
 	}
+	maxBytes := s.MaxBytes
+	if maxBytes <= 0 {
+		maxBytes = DefaultMaxBytes
+	}
 	repairEvery := max(1, s.RepairEvery)
 	probs := make([]*Problem, workers)
 	for w := range probs {
@@ -329,7 +398,7 @@ func Search(ctx context.Context, build func() (*Problem, error), br Brancher, s 
 		Project(main.Sense, main.Rows, rootPrices)
 	}
 	root := &searchNode{id: 0, prices: rootPrices, key: math.Inf(-1)}
-	open := &nodeHeap{}
+	open := &nodeStore{maxN: maxOpen, maxBytes: maxBytes}
 	var dives []*searchNode
 	dives = append(dives, root)
 	nextID := 1
@@ -357,6 +426,10 @@ func Search(ctx context.Context, build func() (*Problem, error), br Brancher, s 
 			status = SearchNodeLimit
 			break
 		}
+		if s.Rounds > 0 && tree.Rounds >= s.Rounds {
+			status = SearchWorkLimit
+			break
+		}
 		// The batch: dive children first, then best bound.
 		size := batch
 		if s.Nodes > 0 {
@@ -371,12 +444,12 @@ func Search(ctx context.Context, build func() (*Problem, error), br Brancher, s 
 			if len(nodes) < diveSlots {
 				nodes = append(nodes, d)
 			} else {
-				heap.Push(open, d)
+				open.push(d)
 			}
 		}
 		dives = dives[:0]
 		for len(nodes) < size && open.Len() > 0 {
-			nodes = append(nodes, heap.Pop(open).(*searchNode))
+			nodes = append(nodes, open.pop())
 		}
 		// Nodes whose bound can no longer beat the incumbent close now.
 		kept := nodes[:0]
@@ -393,6 +466,10 @@ func Search(ctx context.Context, build func() (*Problem, error), br Brancher, s 
 			continue
 		}
 		cutoff, hasCutoff := se.cutoff()
+		roundsLeft := 0 // no cap
+		if s.Rounds > 0 {
+			roundsLeft = s.Rounds - tree.Rounds
+		}
 		outs := make([]evalOut, len(nodes))
 		var wg sync.WaitGroup
 		next := make(chan int)
@@ -401,7 +478,7 @@ func Search(ctx context.Context, build func() (*Problem, error), br Brancher, s 
 			go func(p *Problem) {
 				defer wg.Done()
 				for k := range next {
-					outs[k] = se.evaluate(ctx, p, nodes[k], rootFix, cutoff, hasCutoff)
+					outs[k] = se.evaluate(ctx, p, nodes[k], rootFix, cutoff, hasCutoff, roundsLeft)
 				}
 			}(probs[w])
 		}
@@ -417,12 +494,13 @@ func Search(ctx context.Context, build func() (*Problem, error), br Brancher, s 
 				return nil, o.err
 			}
 			if o.stopped {
-				heap.Push(open, nd)
+				open.push(nd)
 				continue
 			}
 			tree.Nodes++
 			tree.Depth = max(tree.Depth, nd.depth)
 			r := o.res
+			tree.Rounds += max(1, r.Rounds)
 			if nd.id == 0 && r.HasBound {
 				res.RootBound, res.RootPrices = r.Bound, slices.Clone(r.Prices)
 			}
@@ -432,7 +510,7 @@ func Search(ctx context.Context, build func() (*Problem, error), br Brancher, s 
 			}
 			bound := math.Max(nd.key, sg*r.Bound)
 			if !r.HasBound {
-				heap.Push(open, nd)
+				open.push(nd)
 				continue
 			}
 			if r.CutOff {
@@ -442,7 +520,8 @@ func Search(ctx context.Context, build func() (*Problem, error), br Brancher, s 
 			}
 			if main.Repair != nil && (nd.id == 0 || tree.Nodes%repairEvery == 0) {
 				in := &RepairInput{Round: nd.id, Sense: main.Sense, Prices: r.Prices, Answers: r.BestAnswers,
-					Bound: r.Bound, BoundPrices: r.Prices, Best: se.inc, Seed: mixSeed(s.Seed, uint64(nd.id)), Primal: o.primal}
+					Bound: r.Bound, BoundPrices: r.Prices, Best: se.inc, Seed: mixSeed(s.Seed, uint64(nd.id)), Primal: o.primal,
+					Fixings: o.fixings}
 				plan, err := main.Repair.Repair(ctx, in)
 				if err != nil {
 					if ctx.Err() == nil {
@@ -514,9 +593,9 @@ func Search(ctx context.Context, build func() (*Problem, error), br Brancher, s 
 					dives = append(dives, child)
 					continue
 				}
-				heap.Push(open, child)
-				if open.Len() > maxOpen {
-					se.shrink(open, maxOpen/2, tree)
+				open.push(child)
+				if open.full() {
+					se.shrink(open, tree)
 				}
 			}
 		}
@@ -529,6 +608,7 @@ func Search(ctx context.Context, build func() (*Problem, error), br Brancher, s 
 	res.Plan = se.inc
 	res.Bound = sg * se.globalBound(open, dives)
 	tree.Open = open.Len() + len(dives)
+	tree.OpenBytes, tree.PeakBytes = open.bytes, open.peak
 	res.Proved = status == SearchProved
 	res.Gap = math.Inf(1)
 	if se.inc != nil {
@@ -574,10 +654,22 @@ func (se *search) cutoff() (float64, bool) {
 }
 
 // prunes reports whether a node of bound key (minimising terms) can hold
-// no plan better than the incumbent.
+// no plan better than the incumbent. Without an integral objective a
+// bound that meets the cutoff exactly prunes too (a step of the ascent
+// aimed at the cutoff lands on it where the bound is linear): the cutoff
+// is the incumbent less the tolerance, so the node holds no plan better
+// beyond the tolerance, and its bound joins the global bound within the
+// tolerance of the plan. With an integral objective the test stays
+// strict, so that the closed node's rounded bound reaches the plan.
 func (se *search) prunes(key float64) bool {
 	c, ok := se.cutoff()
-	return ok && key > se.sg*c
+	if !ok {
+		return false
+	}
+	if se.main.IntegralObjective {
+		return key > se.sg*c
+	}
+	return key >= se.sg*c
 }
 
 // leafValue is a closed node's contribution to the global bound.
@@ -592,20 +684,22 @@ func (se *search) offer(p *Plan, tree *TreeSummary) {
 	if p == nil || math.IsNaN(p.Value) {
 		return
 	}
-	if se.inc == nil || se.sg*p.Value < se.sg*se.inc.Value {
+	// A plan better only within the tolerance is a tie: keeping the
+	// incumbent keeps the cutoff, and so the node ascents, unchanged.
+	if se.inc == nil || se.sg*p.Value < se.sg*se.inc.Value-se.eps() {
 		se.inc = p
 		tree.Plans++
 	}
 }
 
 // globalBound is the best bound over everything not yet excluded.
-func (se *search) globalBound(open *nodeHeap, dives []*searchNode) float64 {
+func (se *search) globalBound(open *nodeStore, dives []*searchNode) float64 {
 	b := math.Min(se.closedBest, se.droppedBest)
 	if se.inc != nil {
 		b = math.Min(b, se.sg*se.inc.Value)
 	}
 	if open.Len() > 0 {
-		b = math.Min(b, (*open)[0].key)
+		b = math.Min(b, open.h[0].key)
 	}
 	for _, d := range dives {
 		b = math.Min(b, d.key)
@@ -623,21 +717,28 @@ func (se *search) ctxStatus(ctx context.Context) SearchStatus {
 	return SearchInterrupted
 }
 
-// shrink keeps the keep best-bound nodes of the store.
-func (se *search) shrink(open *nodeHeap, keep int, tree *TreeSummary) {
-	all := *open
+// shrink keeps the best-bound nodes of the full store: at most half its
+// count limit and half its byte limit.
+func (se *search) shrink(open *nodeStore, tree *TreeSummary) {
+	all := open.h
 	sort.Slice(all, func(a, b int) bool { return all.Less(a, b) })
+	keep, bytes := 0, int64(0)
+	for keep < len(all) && keep < max(1, open.maxN/2) && bytes+all[keep].bytes <= open.maxBytes/2 {
+		bytes += all[keep].bytes
+		keep++
+	}
 	for _, nd := range all[keep:] {
 		se.droppedBest = math.Min(se.droppedBest, nd.key)
 		tree.Dropped++
 	}
 	clear(all[keep:])
-	*open = all[:keep]
-	heap.Init(open)
+	open.h = all[:keep]
+	open.bytes = bytes
+	heap.Init(&open.h)
 }
 
 // evaluate bounds one node on a worker's problem copy.
-func (se *search) evaluate(ctx context.Context, p *Problem, nd *searchNode, rootFix *fixChain, cutoff float64, hasCutoff bool) evalOut {
+func (se *search) evaluate(ctx context.Context, p *Problem, nd *searchNode, rootFix *fixChain, cutoff float64, hasCutoff bool, roundsLeft int) evalOut {
 	// The cutoff bounds the ascent; reduced-cost fixing happens at the merge.
 	fix := rootFix.collect(nil)
 	fix = nd.parentFixings(fix)
@@ -657,6 +758,9 @@ func (se *search) evaluate(ctx context.Context, p *Problem, nd *searchNode, root
 		if rounds <= 0 {
 			rounds = 300
 		}
+	}
+	if roundsLeft > 0 {
+		rounds = min(rounds, roundsLeft)
 	}
 	var method Method
 	if se.s.NewMethod != nil {

@@ -54,16 +54,36 @@ func (m *Model) Brancher() (decomp.Brancher, error) {
 	if err != nil {
 		return nil, err
 	}
-	return &siteBrancher{md: md, r: newRepairer(md)}, nil
+	r := newRepairer(md)
+	return &siteBrancher{md: md, r: r, plan: r.solutionPlan}, nil
 }
 
-// siteBrancher branches on the free site whose forcing the other way
-// costs least (the site the relaxation is least sure of), the child the
-// answers prefer first. A node with every site decided is solved by the
-// exact allocation over its open sites.
+// solutionPlan is the exact mode's plan of an open set: the exact
+// allocation as a Solution, or nil when the set cannot serve the demand.
+func (r *repairer) solutionPlan(open []bool) (*decomp.Plan, error) {
+	sol, err := r.solution(open)
+	if err != nil || sol == nil {
+		return nil, err
+	}
+	use := make([]float64, len(r.md.in.Customers))
+	for j := range use {
+		use[j] = 1
+	}
+	return &decomp.Plan{Value: sol.Value, Use: use, Detail: sol}, nil
+}
+
+// siteBrancher branches on the free site whose value at the node's prices
+// is closest to zero (the site the relaxation is least sure of: with the
+// site relaxation |value| is the penalty of forcing it the other way),
+// the child the answers prefer first; a closed child whose remaining
+// sites cannot cover the demand holds no plan and is left out. A node with
+// every site decided is solved by the exact allocation over its open
+// sites. It serves both the exact mode and the repair's site search, which
+// differ in the plans they build (plan).
 type siteBrancher struct {
-	md *model
-	r  *repairer
+	md   *model
+	r    *repairer
+	plan func(open []bool) (*decomp.Plan, error)
 }
 
 func (b *siteBrancher) fixing(i int, v float64) decomp.Fixing {
@@ -76,68 +96,36 @@ func (b *siteBrancher) fixing(i int, v float64) decomp.Fixing {
 // Branch implements decomp.Brancher.
 func (b *siteBrancher) Branch(in *decomp.BranchInput) (*decomp.Branching, error) {
 	md := b.md
-	m := len(md.sites)
-	open := b.r.openOf(in.Answers, nil)
-	decided := make([]int8, m) // 1 open, -1 closed, 0 free
-	for i, s := range md.sites {
-		switch s.status {
-		case ForcedOpen:
-			decided[i] = 1
-		case ForcedClosed:
-			decided[i] = -1
-		}
+	fix := md.statusesUnder(in.Fixings)
+	if err := b.r.siteValues(in.Prices); err != nil {
+		return nil, err
 	}
-	for _, f := range in.Fixings {
-		i := -1
-		if md.relax == AggregateRelaxation && f.Block == 0 && f.Var < m {
-			i = f.Var
-		} else if md.relax == SiteRelaxation && f.Var == 0 {
-			i = f.Block
-		}
-		if i >= 0 {
-			decided[i] = -1
-			if f.Value == 1 {
-				decided[i] = 1
-			}
-		}
-	}
-	pick, best := -1, math.Inf(1)
-	for i := 0; i < m; i++ {
-		if decided[i] != 0 {
-			continue
-		}
-		d := 0.0
-		if in.Penalties != nil && md.relax == SiteRelaxation {
-			for _, p := range in.Penalties[i] {
-				if p.Var == 0 {
-					d = p.Delta
-				}
-			}
-		}
-		if pick < 0 || d < best {
-			pick, best = i, d
+	pick := -1
+	for i, f := range fix {
+		if f == Free && (pick < 0 || math.Abs(b.r.score[i]) < math.Abs(b.r.score[pick])) {
+			pick = i
 		}
 	}
 	if pick < 0 {
 		// Every site decided: the node's best plan is the exact allocation
 		// over its open sites (none when they cannot serve the demand).
-		set := make([]bool, m)
-		for i, d := range decided {
-			set[i] = d == 1
+		set := make([]bool, len(fix))
+		for i, f := range fix {
+			set[i] = f == ForcedOpen
 		}
-		sol, err := b.r.solution(set)
-		if err != nil || sol == nil {
-			return &decomp.Branching{}, err
+		p, err := b.plan(set)
+		if err != nil {
+			return nil, err
 		}
-		use := make([]float64, len(md.in.Customers))
-		for j := range use {
-			use[j] = 1
-		}
-		return &decomp.Branching{Plan: &decomp.Plan{Value: sol.Value, Use: use, Detail: sol}}, nil
+		return &decomp.Branching{Plan: p}, nil
 	}
-	first, second := b.fixing(pick, 0), b.fixing(pick, 1)
-	if open[pick] {
-		first, second = second, first
+	open, shut := b.fixing(pick, 1), b.fixing(pick, 0)
+	fix[pick] = ForcedClosed
+	if !closedFeasible(md, fix) {
+		return &decomp.Branching{Children: [][]decomp.Fixing{{open}}}, nil
 	}
-	return &decomp.Branching{Children: [][]decomp.Fixing{{first}, {second}}}, nil
+	if b.r.openOf(in.Answers, nil)[pick] {
+		return &decomp.Branching{Children: [][]decomp.Fixing{{open}, {shut}}}, nil
+	}
+	return &decomp.Branching{Children: [][]decomp.Fixing{{shut}, {open}}}, nil
 }

@@ -53,7 +53,9 @@ type repairer struct {
 	sc    scratch
 	score []float64 // site values at the current prices (lower = more attractive)
 	ss    *singleSource
-	node  *decomp.Problem // the site search's own problem, built on first use
+	// scoreAt are the prices of score (nil: none yet), so that the site
+	// search's repair and brancher at one node price the sites once.
+	scoreAt []float64
 }
 
 func newRepairer(shared *model) *repairer {
@@ -98,15 +100,8 @@ func (r *repairer) Repair(ctx context.Context, rin *decomp.RepairInput) (*decomp
 	md := r.md
 	m := len(md.sites)
 	// Site values at the round's prices rank the moves.
-	for i := range md.sites {
-		r.score[i] = 0
-		if md.sites[i].status == ForcedClosed {
-			continue
-		}
-		if err := md.evalFrac(i, &r.sc, rin.Prices); err != nil {
-			return nil, err
-		}
-		r.score[i] = r.sc.value
+	if err := r.siteValues(rin.Prices); err != nil {
+		return nil, err
 	}
 	open := make([]bool, m)
 	switch md.relax {
@@ -670,136 +665,138 @@ func (s *singleSource) evaluate(open []bool) (float64, error) {
 	return v, nil
 }
 
-// branchAndBound searches the site set exhaustively: each node fixes some
-// sites open or closed (as engine fixings of the y variables), bounds the
-// node by the engine's node re-solve (decomp.SolveNode: a short dual ascent
-// on the run's relaxation from the parent's prices, cut off at the
-// incumbent), tries the node's relaxed open set as a plan, and branches on
-// the free site whose value is closest to zero. It returns the best open
-// set found (the incumbent when nothing better is found or the budget runs
-// out); complete reports that the search closed, which proves the returned
-// open set optimal (within 1e-9 relative).
+// branchAndBound searches the site set exhaustively with the engine's
+// branch and bound (decomp.Search) on a problem of its own: the run's rows
+// and relaxation over the repairer's copy of the model, the sites' y
+// variables fixed by the nodes, each node bounded by a short dual ascent
+// from its parent's prices (the root from prices) and cut off at the
+// incumbent, which starts as the given open set. At each node the node's
+// relaxed open set, completed under the node's fixings, is a candidate
+// plan (nodeRepair); the node splits on the free site whose value is
+// closest to zero (siteBrancher). The work is bounded by nodes and by
+// dual ascent rounds, never by the clock, so the repair is reproducible.
+// It returns the best open set found (the given one when nothing better
+// is found or the budget runs out); complete reports that the search
+// closed, which proves the returned open set optimal (within 1e-9
+// relative).
 func (r *repairer) branchAndBound(ctx context.Context, prices []float64, open []bool, value float64) (bestOpen []bool, best float64, complete bool, err error) {
 	md := r.md
 	m, n := len(md.sites), len(md.in.Customers)
-	if r.node == nil {
-		r.node = r.nodeProblem()
-	}
-	bestOpen, best = slices.Clone(open), value
-	tol := func() float64 { return 1e-9 * math.Max(1, math.Abs(best)) }
-
-	type node struct {
-		fix    []SiteFixing
-		prices []float64
-	}
 	limit := md.opt.ExactNodes
 	if limit <= 0 {
 		limit = 20000
 	}
-	root := node{fix: make([]SiteFixing, m), prices: slices.Clone(prices)}
-	for i := range root.fix {
-		root.fix[i] = md.sites[i].status
-	}
-	stack := []node{root}
-	values := make([]float64, m)
-	sc := &scratch{}
-	var relaxOpen []bool
-	// The work is bounded by nodes and by dual ascent rounds, counted in
-	// site-customer cells so that large instances get fewer.
+	// Rounds are counted in site-customer cells, so that large instances
+	// get fewer.
 	work := md.opt.ExactWork
 	if work <= 0 {
 		work = 1e8
 	}
-	roundsLeft := int(work / float64(m*n))
-	cut := false
-	for nodes := 0; len(stack) > 0; nodes++ {
-		if nodes >= limit || roundsLeft <= 0 {
-			cut = true
-			break
-		}
-		if ctx.Err() != nil {
-			break
-		}
-		nd := stack[len(stack)-1]
-		stack = stack[:len(stack)-1]
-		rounds := nodeRounds
-		if nodes == 0 {
-			rounds = rootRounds
-		}
-		res, err := decomp.SolveNode(ctx, r.node, decomp.NodeSettings{
-			Prices: nd.prices, Fixings: r.siteFixings(nd.fix), Rounds: min(rounds, roundsLeft),
-			Cutoff: best - tol(), HasCutoff: true, KeepBest: true,
-			// One goroutine: the search runs beside the run's rounds.
-			Evaluator: decomp.Pool{Workers: 1},
-			Method:    &decomp.Subgradient{Theta: 1, Patience: 5, StopTheta: 1e-4},
-		})
-		if err != nil {
-			return nil, 0, false, fmt.Errorf("cflp: site search: %w", err)
-		}
-		roundsLeft -= max(1, res.Rounds)
-		if res.Infeasible || res.CutOff {
-			continue
-		}
-		if !res.HasBound {
-			break // interrupted before a round completed
-		}
-		bestL, bestLam := res.Bound, res.Prices
-		relaxOpen = r.openOf(res.BestAnswers, relaxOpen)
-		// The node's relaxed open set, completed, is a candidate plan.
-		cand := slices.Clone(relaxOpen)
-		for i, f := range nd.fix {
-			switch f {
-			case ForcedOpen:
-				cand[i] = true
-			case ForcedClosed:
-				cand[i] = false
-			}
-		}
-		// Rank by the node's site values for completion and branching.
-		for i := range md.sites {
-			values[i] = 0
-			if nd.fix[i] == ForcedClosed {
-				continue
-			}
-			if err := md.eval(i, sc, bestLam, false); err != nil {
-				return nil, 0, false, err
-			}
-			values[i] = sc.value
-		}
-		copy(r.score, values)
-		if co, cv, err := r.completeFixed(cand, nd.fix); err != nil {
-			return nil, 0, false, err
-		} else if co != nil && cv < best-tol() {
-			bestOpen, best = slices.Clone(co), cv
-		}
-		if bestL >= best-tol() {
-			continue
-		}
-		pick := -1
-		for i, f := range nd.fix {
-			if f == Free && (pick < 0 || math.Abs(values[i]) < math.Abs(values[pick])) {
-				pick = i
-			}
-		}
-		if pick < 0 {
-			continue
-		}
-		closeChild := node{fix: slices.Clone(nd.fix), prices: slices.Clone(bestLam)}
-		closeChild.fix[pick] = ForcedClosed
-		openChild := node{fix: slices.Clone(nd.fix), prices: bestLam}
-		openChild.fix[pick] = ForcedOpen
-		if !closedFeasible(md, closeChild.fix) {
-			stack = append(stack, openChild)
-			continue
-		}
-		// Depth first, the child the relaxation prefers on top.
-		if relaxOpen[pick] {
-			stack = append(stack, closeChild, openChild)
-		} else {
-			stack = append(stack, openChild, closeChild)
+	build := func() (*decomp.Problem, error) { return r.nodeProblem(), nil }
+	br := &siteBrancher{md: md, r: r, plan: r.openSetPlan}
+	sr, err := decomp.Search(ctx, build, br, decomp.SearchSettings{
+		Nodes: limit, Rounds: max(1, int(work/float64(m*n))),
+		// One worker and one node at a time: the search runs beside the
+		// run's rounds, and depth first along the preferred children
+		// until a dive ends.
+		Workers: 1, Batch: 1,
+		Prices: prices, Incumbent: &decomp.Plan{Value: value, Detail: slices.Clone(open)},
+		RootRounds: rootRounds, NodeRounds: nodeRounds,
+	})
+	if err != nil {
+		return nil, 0, false, fmt.Errorf("cflp: site search: %w", err)
+	}
+	bo, ok := sr.Plan.Detail.([]bool)
+	if !ok {
+		return nil, 0, false, fmt.Errorf("cflp: site search: plan of type %T is not an open set", sr.Plan.Detail)
+	}
+	return bo, sr.Plan.Value, sr.Proved, nil
+}
+
+// openSetPlan is the site search's plan of an open set: its value (the
+// cached exact allocation) with the set as Detail, or nil when the set
+// cannot serve the demand.
+func (r *repairer) openSetPlan(open []bool) (*decomp.Plan, error) {
+	v, _, err := r.evaluateCached(open)
+	if err != nil || math.IsNaN(v) {
+		return nil, err
+	}
+	return &decomp.Plan{Value: v, Detail: slices.Clone(open)}, nil
+}
+
+// nodeRepair is the site search's repair at a node: the node's relaxed
+// open set, completed (most attractive sites first at the node's prices)
+// under the node's fixings, allocated exactly. Its plans carry the open
+// set as Detail.
+type nodeRepair struct{ r *repairer }
+
+func (nr nodeRepair) Repair(_ context.Context, in *decomp.RepairInput) (*decomp.Plan, error) {
+	r := nr.r
+	fix := r.md.statusesUnder(in.Fixings)
+	cand := r.openOf(in.Answers, nil)
+	for i, f := range fix {
+		switch f {
+		case ForcedOpen:
+			cand[i] = true
+		case ForcedClosed:
+			cand[i] = false
 		}
 	}
-	return bestOpen, best, len(stack) == 0 && !cut && ctx.Err() == nil, nil
+	if err := r.siteValues(in.Prices); err != nil {
+		return nil, err
+	}
+	co, cv, err := r.completeFixed(cand, fix)
+	if err != nil || co == nil {
+		return nil, err
+	}
+	return &decomp.Plan{Value: cv, Detail: slices.Clone(co)}, nil
+}
+
+// siteValues sets r.score to the site values at prices (0 for sites
+// forced closed), unless they are already those of equal prices.
+func (r *repairer) siteValues(prices []float64) error {
+	if r.scoreAt != nil && slices.Equal(r.scoreAt, prices) {
+		return nil
+	}
+	r.scoreAt = r.scoreAt[:0]
+	for i := range r.md.sites {
+		r.score[i] = 0
+		if r.md.sites[i].status == ForcedClosed {
+			continue
+		}
+		if err := r.md.evalFrac(i, &r.sc, prices); err != nil {
+			return err
+		}
+		r.score[i] = r.sc.value
+	}
+	r.scoreAt = append(r.scoreAt, prices...)
+	return nil
+}
+
+// statusesUnder returns the sites' statuses with the y fixings among fix
+// applied (other fixings are ignored).
+func (md *model) statusesUnder(fix []decomp.Fixing) []SiteFixing {
+	m := len(md.sites)
+	out := make([]SiteFixing, m)
+	for i := range md.sites {
+		out[i] = md.sites[i].status
+	}
+	for _, f := range fix {
+		i := -1
+		if md.relax == AggregateRelaxation && f.Block == 0 && f.Var < m {
+			i = f.Var
+		} else if md.relax == SiteRelaxation && f.Var == 0 && f.Block < m {
+			i = f.Block
+		}
+		if i < 0 {
+			continue
+		}
+		out[i] = ForcedClosed
+		if f.Value == 1 {
+			out[i] = ForcedOpen
+		}
+	}
+	return out
 }
 
 // Dual ascent rounds of the site search at the root and at other nodes.
@@ -811,8 +808,8 @@ const (
 // nodeProblem is the engine problem the site search re-solves: the run's
 // rows and relaxation, with blocks of its own over the repairer's copy of
 // the model, so that a search never touches the blocks the run's rounds
-// are evaluating. Sites are fixed through Problem fixings, never through
-// their statuses.
+// are evaluating, and nodeRepair as its repair. Sites are fixed through
+// the nodes' fixings, never through their statuses.
 func (r *repairer) nodeProblem() *decomp.Problem {
 	md := r.md
 	p := &decomp.Problem{Name: md.in.Name + " site search", Sense: decomp.Minimise, Rows: demandRows(md.in)}
@@ -823,28 +820,8 @@ func (r *repairer) nodeProblem() *decomp.Problem {
 			p.Blocks = append(p.Blocks, &siteBlock{md: md, i: i})
 		}
 	}
+	p.Repair = nodeRepair{r}
 	return p
-}
-
-// siteFixings turns a node's site statuses into fixings of the y
-// variables of the sites whose status differs from the instance's.
-func (r *repairer) siteFixings(fix []SiteFixing) []decomp.Fixing {
-	var out []decomp.Fixing
-	for i, f := range fix {
-		if f == r.md.sites[i].status || f == Free {
-			continue
-		}
-		v := 0.0
-		if f == ForcedOpen {
-			v = 1
-		}
-		if r.md.relax == AggregateRelaxation {
-			out = append(out, decomp.Fixing{Block: 0, Var: i, Value: v})
-		} else {
-			out = append(out, decomp.Fixing{Block: i, Var: 0, Value: v})
-		}
-	}
-	return out
 }
 
 // closedFeasible reports whether the sites not forced closed can cover the
