@@ -191,13 +191,15 @@ func TestSearchBruteForce(t *testing.T) {
 	}
 }
 
-// TestSearchLimits: a node limit and a store of two nodes stop the search
-// early or drop nodes; the global bound stays on the right side of the
-// optimum (brute force) and no proof is claimed unless the tree closed
-// without dropping.
+// TestSearchLimits: a node limit, a store of two nodes, a store of a few
+// nodes' bytes and a budget of ascent rounds stop the search early or
+// drop nodes; the global bound stays on the right side of the optimum
+// (brute force) and no proof is claimed unless the tree closed without
+// dropping.
 func TestSearchLimits(t *testing.T) {
 	rng := rand.New(rand.NewPCG(3, 5))
-	dropped, limited := 0, 0
+	dropped, limited, byBytes, worked := 0, 0, 0, 0
+	memory := 3 * decomp.NodeBytes(2, 3)
 	for c := 0; c < 60; c++ {
 		seed := rng.Uint64()
 		sense := decomp.Sense(c % 2)
@@ -209,7 +211,8 @@ func TestSearchLimits(t *testing.T) {
 		if !ok {
 			continue
 		}
-		for _, s := range []decomp.SearchSettings{{Nodes: 3, NoFixing: true}, {MaxOpen: 2, NoFixing: true, Batch: 1, NodeRounds: 3, RootRounds: 5}} {
+		for _, s := range []decomp.SearchSettings{{Nodes: 3, NoFixing: true}, {MaxOpen: 2, NoFixing: true, Batch: 1, NodeRounds: 3, RootRounds: 5},
+			{MaxBytes: memory, NoFixing: true, Batch: 1, NodeRounds: 3, RootRounds: 5}, {Rounds: 12, Batch: 2, NodeRounds: 3, RootRounds: 5}} {
 			res, err := decomp.Search(context.Background(), build, choiceBrancher{p}, s)
 			if err != nil {
 				t.Fatal(err)
@@ -219,6 +222,29 @@ func TestSearchLimits(t *testing.T) {
 			}
 			if res.Plan != nil && sense.Better(res.Plan.Value, want) {
 				t.Fatalf("case %d: plan %v better than the optimum %v", c, res.Plan.Value, want)
+			}
+			if s.MaxBytes > 0 {
+				// The store holds at most its bound after every push and
+				// shrink; the peak is taken before a shrink, one node over.
+				if res.Tree.OpenBytes > memory || res.Tree.PeakBytes > memory+decomp.NodeBytes(len(p.Blocks), len(p.Rows)) {
+					t.Fatalf("case %d: store of %d bytes (peak %d), bound %d", c, res.Tree.OpenBytes, res.Tree.PeakBytes, memory)
+				}
+				if res.Tree.Dropped > 0 {
+					byBytes++
+				}
+			}
+			if s.Rounds > 0 {
+				// A node's ascent is capped by the budget left when its
+				// batch starts: at most a batch of node ascents over.
+				if res.Tree.Rounds > s.Rounds+2*s.NodeRounds {
+					t.Fatalf("case %d: %d ascent rounds for a budget of %d", c, res.Tree.Rounds, s.Rounds)
+				}
+				if res.Status == decomp.SearchWorkLimit {
+					worked++
+					if res.Proved || res.Tree.Rounds < s.Rounds {
+						t.Fatalf("case %d: work limit: %+v", c, res)
+					}
+				}
 			}
 			switch {
 			case res.Tree.Dropped > 0:
@@ -236,8 +262,8 @@ func TestSearchLimits(t *testing.T) {
 			}
 		}
 	}
-	if dropped == 0 || limited == 0 {
-		t.Fatalf("dropped in %d cases, node limit in %d: the limits were not exercised", dropped, limited)
+	if dropped == 0 || limited == 0 || byBytes == 0 || worked == 0 {
+		t.Fatalf("dropped in %d cases (%d by bytes), node limit in %d, work limit in %d: the limits were not exercised", dropped, byBytes, limited, worked)
 	}
 }
 

@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"strconv"
 	"strings"
 	"time"
 
@@ -20,7 +21,34 @@ type exactFlags struct {
 	on      bool
 	nodes   int
 	maxOpen int
+	memory  string // --node-memory as given
+	bytes   int64  // and in bytes, set by check
 	batch   int
+}
+
+// minNodeMemory is the smallest --node-memory accepted.
+const minNodeMemory = 64 << 10
+
+// parseSize reads a byte count with an optional binary unit: "512MiB",
+// "64KiB", "2GiB", "1048576" or "1048576B".
+func parseSize(s string) (int64, bool) {
+	units := []struct {
+		suffix string
+		factor int64
+	}{{"KiB", 1 << 10}, {"MiB", 1 << 20}, {"GiB", 1 << 30}, {"TiB", 1 << 40}, {"B", 1}}
+	t := strings.TrimSpace(s)
+	factor := int64(1)
+	for _, u := range units {
+		if strings.HasSuffix(t, u.suffix) {
+			t, factor = strings.TrimSpace(strings.TrimSuffix(t, u.suffix)), u.factor
+			break
+		}
+	}
+	n, err := strconv.ParseInt(t, 10, 64)
+	if err != nil || n < 0 || n > math.MaxInt64/factor {
+		return 0, false
+	}
+	return n * factor, true
 }
 
 func (e *exactFlags) register(cmd *cobra.Command) {
@@ -28,10 +56,16 @@ func (e *exactFlags) register(cmd *cobra.Command) {
 	fl.BoolVar(&e.on, "exact", false, "search to a proof: Lagrangian branch and bound with reduced-cost fixing, limited by --time, --nodes and --open-limit (families with an exact mode)")
 	fl.IntVar(&e.nodes, "nodes", 0, "with --exact: limit on nodes evaluated (0 for none; at least 0)")
 	fl.IntVar(&e.maxOpen, "open-limit", 200000, "with --exact: most open nodes kept; when full the worse-bound half is dropped and its bound stays in the global bound, which then cannot close (at least 2)")
+	fl.StringVar(&e.memory, "node-memory", "512MiB", "with --exact: most memory the open nodes may hold, estimated from their fixings and warm prices (B, KiB, MiB, GiB; at least 64KiB); when full the worse-bound half is dropped as with --open-limit")
 	fl.IntVar(&e.batch, "batch", 8, "with --exact: nodes evaluated together (the search depends on it, not on --workers; at least 1)")
 }
 
 func (e *exactFlags) check(f *runFlags) error {
+	n, ok := parseSize(e.memory)
+	if !ok || n < minNodeMemory {
+		return badInput(fmt.Errorf("--node-memory %q: want a size of at least 64KiB, such as 512MiB (a whole number with B, KiB, MiB or GiB)", e.memory))
+	}
+	e.bytes = n
 	switch {
 	case e.nodes < 0:
 		return badInput(fmt.Errorf("--nodes %d: want at least 0", e.nodes))
@@ -57,6 +91,7 @@ type exactReport struct {
 	*report
 	Nodes       int      `json:"nodes"`
 	OpenNodes   int      `json:"open_nodes"`
+	NodeMemory  int64    `json:"node_memory"`
 	GlobalBound num      `json:"global_bound"`
 	RootBound   num      `json:"root_bound"`
 	Proved      bool     `json:"proved"`
@@ -65,17 +100,20 @@ type exactReport struct {
 }
 
 type treeJSON struct {
-	Depth      int `json:"depth"`
-	CutOff     int `json:"cut_off"`
-	Infeasible int `json:"infeasible"`
-	Solved     int `json:"solved"`
-	Branched   int `json:"branched"`
-	Pruned     int `json:"pruned_by_penalty"`
-	Dropped    int `json:"dropped"`
-	Fixed      int `json:"fixed_by_reduced_cost"`
-	RootFixed  int `json:"fixed_at_root"`
-	Plans      int `json:"plans_found"`
-	Batch      int `json:"batch"`
+	Depth      int   `json:"depth"`
+	CutOff     int   `json:"cut_off"`
+	Infeasible int   `json:"infeasible"`
+	Solved     int   `json:"solved"`
+	Branched   int   `json:"branched"`
+	Pruned     int   `json:"pruned_by_penalty"`
+	Dropped    int   `json:"dropped"`
+	Fixed      int   `json:"fixed_by_reduced_cost"`
+	RootFixed  int   `json:"fixed_at_root"`
+	Plans      int   `json:"plans_found"`
+	Batch      int   `json:"batch"`
+	Rounds     int   `json:"ascent_rounds"`
+	OpenBytes  int64 `json:"open_bytes"`
+	PeakBytes  int64 `json:"peak_bytes"`
 }
 
 // solveExact runs the exact search on a loaded model and reports it like
@@ -108,7 +146,7 @@ func solveExact(ctx context.Context, stdout, stderr io.Writer, f *runFlags, file
 		}
 		return ex.ExactProblem()
 	}
-	s := decomp.SearchSettings{Time: f.time, Nodes: f.exact.nodes, MaxOpen: f.exact.maxOpen, Batch: f.exact.batch,
+	s := decomp.SearchSettings{Time: f.time, Nodes: f.exact.nodes, MaxOpen: f.exact.maxOpen, MaxBytes: f.exact.bytes, Batch: f.exact.batch,
 		Workers: f.workers, Seed: f.seed, Prices: p.Prices}
 	if prog != nil {
 		s.Progress = prog.search
@@ -143,6 +181,7 @@ func solveExact(ctx context.Context, stdout, stderr io.Writer, f *runFlags, file
 	t := sr.Tree
 	fmt.Fprintf(summary, "search      %d nodes, %d open, depth %d; %d cut off, %d infeasible, %d solved, %d pruned by penalties, %d dropped; %d variables fixed by reduced costs (%d at the root)\n",
 		t.Nodes, t.Open, t.Depth, t.CutOff, t.Infeasible, t.Solved, t.Pruned, t.Dropped, t.Fixed, t.RootFixed)
+	fmt.Fprintf(summary, "node store  peak %s of %s (estimated), %d ascent rounds\n", fmtMiB(t.PeakBytes), fmtMiB(f.exact.bytes), t.Rounds)
 	fmt.Fprintf(summary, "global bound %s (%s)\n", fmtNum(sr.Bound), sr.Status)
 	if f.report != "" {
 		rep, err := buildReport(f.format, file, f.opts.values().Int("index"), f.workers, f.seed, f.history == "full", m, res)
@@ -151,10 +190,11 @@ func solveExact(ctx context.Context, stdout, stderr io.Writer, f *runFlags, file
 		}
 		rep.Rule, rep.WarmStart, rep.Stop = "exact", warm, sr.Status.String()
 		rep.withRounded(roundedBound(res.Bound, p.IntegralObjective, m.Sense()))
-		out := &exactReport{report: rep, Nodes: t.Nodes, OpenNodes: t.Open, GlobalBound: num(sr.Bound), RootBound: num(sr.RootBound),
+		out := &exactReport{report: rep, Nodes: t.Nodes, OpenNodes: t.Open, NodeMemory: f.exact.bytes, GlobalBound: num(sr.Bound), RootBound: num(sr.RootBound),
 			Proved: sr.Proved, SearchStop: sr.Status.String(),
 			Tree: treeJSON{Depth: t.Depth, CutOff: t.CutOff, Infeasible: t.Infeasible, Solved: t.Solved, Branched: t.Branched,
-				Pruned: t.Pruned, Dropped: t.Dropped, Fixed: t.Fixed, RootFixed: t.RootFixed, Plans: t.Plans, Batch: f.exact.batch}}
+				Pruned: t.Pruned, Dropped: t.Dropped, Fixed: t.Fixed, RootFixed: t.RootFixed, Plans: t.Plans, Batch: f.exact.batch,
+				Rounds: t.Rounds, OpenBytes: t.OpenBytes, PeakBytes: t.PeakBytes}}
 		if err := writeJSON(f.report, stdout, out); err != nil {
 			return res, &exitError{code: exitInternal, err: err}
 		}
@@ -174,6 +214,9 @@ func solveExact(ctx context.Context, stdout, stderr io.Writer, f *runFlags, file
 	}
 	return res, nil
 }
+
+// fmtMiB writes a byte count in MiB.
+func fmtMiB(n int64) string { return fmt.Sprintf("%.1f MiB", float64(n)/(1<<20)) }
 
 // searchResult presents a search's outcome as a run result, so that the
 // summary, report and plan writers serve both: the bound is the global

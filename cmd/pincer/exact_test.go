@@ -71,6 +71,39 @@ func TestExactReport(t *testing.T) {
 	}
 }
 
+// TestExactNodeMemory: a node store of 64 KiB (about 30 open nodes of a
+// 10 x 200 assignment instance) fills: nodes are dropped, no proof is
+// claimed, the global bound stays on the bound side of the plan, the
+// store's estimate stays within its bound, and the report says so.
+func TestExactNodeMemory(t *testing.T) {
+	code, out, errs := runCLI(t, context.Background(), "solve", "--format", "gap-orlib", "--exact", "--quiet",
+		"--nodes", "120", "--node-memory", "64KiB", "--report", "-", testdata("gap-d-10x200.txt"))
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var k struct {
+		exactKeys
+		NodeMemory *int64 `json:"node_memory"`
+		Tree       struct {
+			Dropped   int   `json:"dropped"`
+			OpenBytes int64 `json:"open_bytes"`
+			PeakBytes int64 `json:"peak_bytes"`
+		} `json:"tree"`
+	}
+	if err := json.Unmarshal([]byte(out), &k); err != nil {
+		t.Fatal(err)
+	}
+	if k.NodeMemory == nil || *k.NodeMemory != 64<<10 {
+		t.Fatalf("node_memory %v, want %d", k.NodeMemory, 64<<10)
+	}
+	if k.Tree.Dropped == 0 || *k.Proved || k.Tree.OpenBytes > 64<<10 || k.Tree.PeakBytes == 0 {
+		t.Fatalf("dropped %d, proved %v, open bytes %d, peak %d", k.Tree.Dropped, *k.Proved, k.Tree.OpenBytes, k.Tree.PeakBytes)
+	}
+	if *k.GlobalBound > *k.PlanValue {
+		t.Fatalf("global bound %v beyond the plan %v", *k.GlobalBound, *k.PlanValue)
+	}
+}
+
 // TestExactRefusals: --exact with a checkpoint, with a plot, or with bad
 // limits is refused with exit 2 and the flag named.
 func TestExactRefusals(t *testing.T) {
@@ -87,6 +120,9 @@ func TestExactRefusals(t *testing.T) {
 		{[]string{"--nodes", "-1"}, "--nodes -1"},
 		{[]string{"--open-limit", "1"}, "--open-limit 1"},
 		{[]string{"--batch", "0"}, "--batch 0"},
+		{[]string{"--node-memory", "10KiB"}, `--node-memory "10KiB"`},
+		{[]string{"--node-memory", "lots"}, `--node-memory "lots"`},
+		{[]string{"--node-memory", "1.5GiB"}, `--node-memory "1.5GiB"`},
 	} {
 		t.Chdir(t.TempDir())
 		args := append([]string{"solve", "--format", "gap-orlib", "--exact", "--quiet"}, c.args...)
