@@ -113,7 +113,8 @@ type SearchSettings struct {
 	// other nodes; 0 means 300 and 40.
 	RootRounds, NodeRounds int
 	// NewMethod makes a fresh price rule for a node; nil means a
-	// subgradient rule that stops once its steps are too short.
+	// subgradient rule that stops once its steps are too short (see
+	// NodeMethod for the rules by name).
 	NewMethod func() Method
 	// NoFixing switches reduced-cost fixing (and penalty child bounds)
 	// off.
@@ -619,6 +620,32 @@ func Search(ctx context.Context, build func() (*Problem, error), br Brancher, s 
 	return res, nil
 }
 
+func nodeSubgradient() Method { return &Subgradient{Theta: 1, Patience: 5, StopTheta: 1e-4} }
+
+// NodeMethod returns a maker of fresh price rules for the short ascents of
+// search nodes, by the names of Rules, each set for a few dozen rounds
+// from warm prices: "subgradient" (the search's default: θ from 1, halved
+// after 5 rounds without a better bound, stopping once it falls below
+// 1e-4), "deflected" (θ from 1, halved after 5), "volume" (its step
+// factor shrunk after 5 red rounds; its averaged primal reaches the
+// nodes' repair and brancher) and "boxstep" (as in a plain run; for
+// problems of at most BoxstepMaxRows rows, which the caller checks: on
+// more, the first node's ascent fails). Every rule keeps node bounds
+// valid; they differ in how fast a node's bound tightens.
+func NodeMethod(name string) (func() Method, error) {
+	switch name {
+	case "subgradient", "":
+		return nodeSubgradient, nil
+	case "deflected":
+		return func() Method { return &Deflected{Theta: 1, Patience: 5} }, nil
+	case "volume":
+		return func() Method { return &Volume{Patience: 5} }, nil
+	case "boxstep":
+		return func() Method { return &Boxstep{} }, nil
+	}
+	return nil, fmt.Errorf("decomp: unknown price rule %q (want one of %v)", name, Rules())
+}
+
 // search holds the shared state of a Search, in minimising terms.
 type search struct {
 	main        *Problem
@@ -766,7 +793,7 @@ func (se *search) evaluate(ctx context.Context, p *Problem, nd *searchNode, root
 	if se.s.NewMethod != nil {
 		method = se.s.NewMethod()
 	} else {
-		method = &Subgradient{Theta: 1, Patience: 5, StopTheta: 1e-4}
+		method = nodeSubgradient()
 	}
 	q := *p
 	q.Fixings = nil

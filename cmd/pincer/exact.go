@@ -92,6 +92,7 @@ type exactReport struct {
 	Nodes       int      `json:"nodes"`
 	OpenNodes   int      `json:"open_nodes"`
 	NodeMemory  int64    `json:"node_memory"`
+	NodeRule    string   `json:"node_rule"`
 	GlobalBound num      `json:"global_bound"`
 	RootBound   num      `json:"root_bound"`
 	Proved      bool     `json:"proved"`
@@ -146,7 +147,14 @@ func solveExact(ctx context.Context, stdout, stderr io.Writer, f *runFlags, file
 		}
 		return ex.ExactProblem()
 	}
-	s := decomp.SearchSettings{Time: f.time, Nodes: f.exact.nodes, MaxOpen: f.exact.maxOpen, MaxBytes: f.exact.bytes, Batch: f.exact.batch,
+	if err := ruleFits(f.rule, p); err != nil {
+		return nil, err
+	}
+	newMethod, err := decomp.NodeMethod(f.rule)
+	if err != nil {
+		return nil, badInput(err)
+	}
+	s := decomp.SearchSettings{NewMethod: newMethod, Time: f.time, Nodes: f.exact.nodes, MaxOpen: f.exact.maxOpen, MaxBytes: f.exact.bytes, Batch: f.exact.batch,
 		Workers: f.workers, Seed: f.seed, Prices: p.Prices}
 	if prog != nil {
 		s.Progress = prog.search
@@ -190,7 +198,7 @@ func solveExact(ctx context.Context, stdout, stderr io.Writer, f *runFlags, file
 		}
 		rep.Rule, rep.WarmStart, rep.Stop = "exact", warm, sr.Status.String()
 		rep.withRounded(roundedBound(res.Bound, p.IntegralObjective, m.Sense()))
-		out := &exactReport{report: rep, Nodes: t.Nodes, OpenNodes: t.Open, NodeMemory: f.exact.bytes, GlobalBound: num(sr.Bound), RootBound: num(sr.RootBound),
+		out := &exactReport{report: rep, Nodes: t.Nodes, OpenNodes: t.Open, NodeMemory: f.exact.bytes, NodeRule: f.rule, GlobalBound: num(sr.Bound), RootBound: num(sr.RootBound),
 			Proved: sr.Proved, SearchStop: sr.Status.String(),
 			Tree: treeJSON{Depth: t.Depth, CutOff: t.CutOff, Infeasible: t.Infeasible, Solved: t.Solved, Branched: t.Branched,
 				Pruned: t.Pruned, Dropped: t.Dropped, Fixed: t.Fixed, RootFixed: t.RootFixed, Plans: t.Plans, Batch: f.exact.batch,

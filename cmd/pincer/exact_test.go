@@ -104,6 +104,44 @@ func TestExactNodeMemory(t *testing.T) {
 	}
 }
 
+// TestExactRules: --rule reaches the node ascents: on a generated 3 x 10
+// assignment instance every rule proves the same optimum and the report
+// names the rule; boxstep on an instance with 200 coupling rows is
+// refused (exit 2).
+func TestExactRules(t *testing.T) {
+	file := filepath.Join(t.TempDir(), "c3x10.txt")
+	if code, _, errs := runCLI(t, context.Background(), "gen", "gap", "--type", "c", "--agents", "3", "--jobs", "10", "--seed", "5", "-o", file); code != exitOK {
+		t.Fatalf("gen: exit %d: %s", code, errs)
+	}
+	var want *float64
+	for _, rule := range []string{"subgradient", "deflected", "volume", "boxstep"} {
+		code, out, errs := runCLI(t, context.Background(), "solve", "--format", "gap-orlib", "--exact", "--quiet", "--rule", rule, "--report", "-", file)
+		if code != exitOK {
+			t.Fatalf("%s: exit %d: %s", rule, code, errs)
+		}
+		var k struct {
+			exactKeys
+			NodeRule string `json:"node_rule"`
+		}
+		if err := json.Unmarshal([]byte(out), &k); err != nil {
+			t.Fatal(err)
+		}
+		if !*k.Proved || k.NodeRule != rule || *k.GlobalBound != *k.PlanValue {
+			t.Fatalf("%s: proved %v, node_rule %q, global bound %v, plan %v", rule, *k.Proved, k.NodeRule, *k.GlobalBound, *k.PlanValue)
+		}
+		if want == nil {
+			want = k.PlanValue
+		} else if *k.PlanValue != *want {
+			t.Fatalf("%s: proved %v, subgradient proved %v", rule, *k.PlanValue, *want)
+		}
+	}
+	code, _, errs := runCLI(t, context.Background(), "solve", "--format", "gap-orlib", "--exact", "--quiet",
+		"--rule", "boxstep", testdata("gap-d-10x200.txt"))
+	if code != exitBadInput || !strings.Contains(errs, "--rule boxstep") {
+		t.Fatalf("boxstep on 200 rows: exit %d, stderr %q", code, errs)
+	}
+}
+
 // TestExactRefusals: --exact with a checkpoint, with a plot, or with bad
 // limits is refused with exit 2 and the flag named.
 func TestExactRefusals(t *testing.T) {
