@@ -119,3 +119,39 @@ func TestCBCOracle(t *testing.T) {
 		}
 	}
 }
+
+// TestSiteSearchBruteForce: on small generated instances the repair's site
+// search (an instance of decomp.Search) claims a proof only for the
+// optimum that trying every open set with gonum's simplex finds (brute
+// force, an outside reference), and claims one on most of them.
+func TestSiteSearchBruteForce(t *testing.T) {
+	proved := 0
+	for c := 0; c < 20; c++ {
+		in, err := Generate(3+c%5, 5+c%6, 1.4+0.4*float64(c%3), uint64(900+c))
+		if err != nil {
+			t.Fatal(err)
+		}
+		want := bruteSplit(t, in)
+		for _, relax := range []Relaxation{SiteRelaxation, AggregateRelaxation} {
+			res := solveORLib(t, in, Options{Relaxation: relax}, decomp.Settings{Rounds: 120, Gap: -1, StallRounds: 1000})
+			if res.Plan == nil {
+				t.Fatalf("case %d (%s): no plan", c, relax)
+			}
+			sol := res.Plan.Detail.(*Solution)
+			tol := 1e-6 * math.Max(1, want)
+			if res.Plan.Value < want-tol || res.Bound > want+tol {
+				t.Fatalf("case %d (%s): plan %v bound %v, brute-force optimum %v", c, relax, res.Plan.Value, res.Bound, want)
+			}
+			if sol.Optimal {
+				proved++
+				if math.Abs(res.Plan.Value-want) > tol {
+					t.Fatalf("case %d (%s): site search proved %v, brute-force optimum %v", c, relax, res.Plan.Value, want)
+				}
+			}
+		}
+	}
+	if proved < 20 {
+		t.Fatalf("the site search proved %d of 40 plans: the check is too weak", proved)
+	}
+	t.Logf("the site search proved %d of 40 plans", proved)
+}
