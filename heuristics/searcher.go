@@ -7,7 +7,12 @@ package heuristics
 // priced costs, 20 before.
 //
 // A Searcher reads p once, in NewSearcher; later changes to p are not seen.
-// It is not safe for concurrent use: one goroutine at a time.
+// It is not safe for concurrent use: one goroutine at a time, with one
+// exception that lets a caller use two cores. Repair touches only its
+// construction buffers, and AddItemPrices and Restrict only the pair bounds
+// and the restriction, so Repair may run on one goroutine while the other
+// runs AddItemPrices and then Restrict; no other method may run meanwhile.
+// Either order gives the same state afterwards.
 type Searcher struct {
 	p      *Assignment
 	base   *model

@@ -191,23 +191,53 @@ func (r *repairer) Repair(ctx context.Context, rin *decomp.RepairInput) (*decomp
 		return nil, nil
 	}
 	rng := rand.New(rand.NewPCG(rin.Seed, 0x6a6f62))
-	var assign []int
 	if !rin.Final {
 		r.calls++
 	}
 	intensify := !rin.Final && r.calls%searchEvery == 0 && r.idle >= 32 && rin.Best != nil
-	if (rin.Final || intensify) && rin.Best != nil {
-		// The last repair, and the periodic search once the plan has
-		// stopped improving, work from the best plan found so far.
-		best, ok := rin.Best.Detail.([]int)
-		if !ok || len(best) != r.in.Jobs {
+	fromBest := (rin.Final || intensify) && rin.Best != nil
+	var best []int
+	if rin.Best != nil {
+		var ok bool
+		if best, ok = rin.Best.Detail.([]int); !ok || len(best) != r.in.Jobs {
 			return nil, fmt.Errorf("gap: best plan of type %T is not an assignment of %d jobs", rin.Best.Detail, r.in.Jobs)
 		}
+	}
+	// The construction from the relaxed answer and the bookkeeping of the
+	// pair bounds (and the restriction they give) touch disjoint parts of
+	// the searcher (see heuristics.Searcher), so with two workers or more
+	// they run side by side; either way both run on every call and the
+	// searcher ends in the same state, so the run does not depend on the
+	// worker count.
+	var assign []int
+	var constructed bool
+	construct := func() {
+		if !fromBest {
+			assign, constructed = r.searcher.Repair(ctx, relaxed, priced, rng)
+		}
+	}
+	var bookErr error
+	if workers := repairWorkers(rin); workers > 1 && !fromBest {
+		done := make(chan struct{})
+		go func() {
+			defer close(done)
+			bookErr = r.bookkeeping(rin, best)
+		}()
+		construct()
+		<-done
+	} else {
+		construct()
+		bookErr = r.bookkeeping(rin, best)
+	}
+	if bookErr != nil {
+		return nil, bookErr
+	}
+	if fromBest {
+		// The last repair, and the periodic search once the plan has
+		// stopped improving, work from the best plan found so far.
 		assign = append([]int(nil), best...)
 	} else {
-		var ok bool
-		assign, ok = r.searcher.Repair(ctx, relaxed, priced, rng)
-		if !ok {
+		if !constructed {
 			r.failures++
 			r.skip = 1<<min(r.failures, 6) - 1
 			return nil, nil
@@ -225,46 +255,10 @@ func (r *repairer) Repair(ctx context.Context, rin *decomp.RepairInput) (*decomp
 	if search && !rin.Final {
 		settings.Moves = -1 // the plan search below does the tabu moves
 	}
-	if r.opt.Relaxation == KnapsackRelaxation {
-		// Reduced costs of every job-agent pair at this round's prices;
-		// the searcher keeps the strongest bound of each pair over the
-		// rounds and forbids the pairs that cannot improve on the best
-		// plan.
-		if r.values == nil {
-			r.values = make([]float64, in.Agents)
-		}
-		L := 0.0
-		for i := range r.values {
-			r.values[i] = rin.Answers[i].Value
-			L += r.values[i]
-		}
-		for _, v := range rin.Prices {
-			L -= v
-		}
-		// Rounds whose bound is well below the best one seldom tighten a
-		// pair: they are skipped (a tenth of the gap below at most).
-		// (a bound is stronger when it is worse as a plan value)
-		stronger := !r.haveL || rin.Sense.Better(r.bestL, L)
-		if stronger || rin.Best == nil || math.Abs(L-r.bestL) <= 0.1*math.Abs(rin.Best.Value-r.bestL) {
-			if _, err := r.searcher.AddItemPrices(rin.Prices, r.values); err != nil {
-				return nil, fmt.Errorf("gap: pair bounds: %w", err)
-			}
-		}
-		if stronger {
-			r.bestL, r.haveL = L, true
-		}
-	}
-	if rin.Best != nil {
-		if best, ok := rin.Best.Detail.([]int); ok {
-			r.searcher.Restrict(best, rin.Best.Value, 1)
-		}
-	}
 	assign, value := r.searcher.Improve(ctx, assign, settings, rng)
 	r.searcher.Offer(assign)
-	if rin.Best != nil {
-		if best, ok := rin.Best.Detail.([]int); ok {
-			r.searcher.Offer(best)
-		}
+	if best != nil {
+		r.searcher.Offer(best)
 	}
 	planSearch := func() {
 		if search && ctx.Err() == nil {
@@ -302,6 +296,54 @@ func (r *repairer) Repair(ctx context.Context, rin *decomp.RepairInput) (*decomp
 		}
 	}
 	return r.plan(assign), nil
+}
+
+// bookkeeping records the pair bounds of the knapsack relaxation at this
+// call's prices and restricts the searches to the pairs that can still be
+// part of a plan better than best (nil: none yet).
+func (r *repairer) bookkeeping(rin *decomp.RepairInput, best []int) error {
+	in := r.in
+	if r.opt.Relaxation == KnapsackRelaxation {
+		// Reduced costs of every job-agent pair at this round's prices;
+		// the searcher keeps the strongest bound of each pair over the
+		// rounds and forbids the pairs that cannot improve on the best
+		// plan.
+		if r.values == nil {
+			r.values = make([]float64, in.Agents)
+		}
+		L := 0.0
+		for i := range r.values {
+			r.values[i] = rin.Answers[i].Value
+			L += r.values[i]
+		}
+		for _, v := range rin.Prices {
+			L -= v
+		}
+		// Rounds whose bound is well below the best one seldom tighten a
+		// pair: they are skipped (a tenth of the gap below at most).
+		// (a bound is stronger when it is worse as a plan value)
+		stronger := !r.haveL || rin.Sense.Better(r.bestL, L)
+		if stronger || rin.Best == nil || math.Abs(L-r.bestL) <= 0.1*math.Abs(rin.Best.Value-r.bestL) {
+			if _, err := r.searcher.AddItemPrices(rin.Prices, r.values); err != nil {
+				return fmt.Errorf("gap: pair bounds: %w", err)
+			}
+		}
+		if stronger {
+			r.bestL, r.haveL = L, true
+		}
+	}
+	if best != nil {
+		r.searcher.Restrict(best, rin.Best.Value, 1)
+	}
+	return nil
+}
+
+// repairWorkers is the worker budget of a repair (0 means every core).
+func repairWorkers(rin *decomp.RepairInput) int {
+	if rin.Workers <= 0 {
+		return runtime.GOMAXPROCS(0)
+	}
+	return rin.Workers
 }
 
 // jobAgents lists, in option order, the agents job j may go to in the
