@@ -17,20 +17,15 @@ import (
 //
 // On a narrowed model (the candidate lists of SearchSettings.Focus, after
 // the reduced-cost candidate lists of Yagiura, Ibaraki & Glover, INFORMS J.
-// Computing 16, 2004) the moves are cheap and most random partners could not
-// swap: the window grows (see windowShifts), swap partners are drawn among
-// the items allowed on the other resource, and ejection chains look at more
-// items of the overloaded resource (see ejectEvals). At 500 rounds (2
-// workers, same seed) this lowered the plan on d401600, e401600 and
-// e801600 by 0.2-0.3 % of the optimum.
+// Computing 16, 2004) most items of another resource could not swap with a
+// given item: swap partners are drawn among the items allowed on the other
+// resource, and ejection chains look at more items of the overloaded
+// resource when their allowed lists are short (see ejectEvals). A window
+// grown to keep the evaluations per move constant was tried and dropped: it
+// helped at a fixed number of rounds but slowed the repairs, which the
+// rounds wait for, and lost at a fixed time.
 const (
-	window = 32
-	// A narrowed model (short allowed lists, see SearchSettings.Focus)
-	// makes each window item cheap: the window then grows so that a move
-	// evaluates about as many shifts as with windowShifts resources per
-	// item, up to maxWindow items.
-	windowShifts  = 16
-	maxWindow     = 128
+	window        = 32
 	fullWindow    = 200 // up to this many items, a move looks at all of them
 	swapResources = 3
 	swapPartners  = 8
@@ -67,7 +62,6 @@ type search struct {
 	pos     []int   // [j] index of j in members[asg[j]]
 	order   []int   // a random permutation of the items, scanned cyclically
 	cursor  int
-	winSize int // items per window on this model (see windowShifts)
 
 	// scratch of step
 	cands   pool
@@ -92,7 +86,7 @@ func newSearch(m, n int) *search {
 		order:   make([]int, n),
 		best:    make([]int, n),
 		cands:   pool{size: ejectStarts},
-		win:     make([]int, 0, maxWindow),
+		win:     make([]int, 0, window),
 		exc:     make([]float64, m),
 		topRes:  make([]int, 0, swapResources),
 		topCost: make([]float64, 0, swapResources),
@@ -113,10 +107,6 @@ func (s *search) reset(ctx context.Context, md *model, asg []int, rng *rand.Rand
 	}
 	rng.Shuffle(len(s.order), func(a, b int) { s.order[a], s.order[b] = s.order[b], s.order[a] })
 	s.cursor = 0
-	s.winSize = window
-	if per := float64(len(md.opt)) / float64(max(md.n, 1)); per < windowShifts {
-		s.winSize = min(maxWindow, int(window*windowShifts/max(per, 1)))
-	}
 	s.recompute()
 	s.bestCost = math.Inf(1)
 	s.haveBest = false
@@ -425,9 +415,9 @@ func (s *search) fillWindow() {
 		s.win = append(s.win, s.order...)
 		return
 	}
-	w := s.winSize
+	w := window
 	if s.over > 0 {
-		for tries := 0; len(s.win) < w/2 && tries < w; tries++ {
+		for tries := 0; len(s.win) < window/2 && tries < window; tries++ {
 			i := s.rng.IntN(s.m)
 			if s.load[i] <= s.limit[i] || len(s.members[i]) == 0 {
 				continue
