@@ -17,15 +17,20 @@ import (
 //
 // On a narrowed model (the candidate lists of SearchSettings.Focus, after
 // the reduced-cost candidate lists of Yagiura, Ibaraki & Glover, INFORMS J.
-// Computing 16, 2004) most items of another resource could not swap with a
-// given item: swap partners are drawn among the items allowed on the other
-// resource, and ejection chains look at more items of the overloaded
-// resource when their allowed lists are short (see ejectEvals). A window
-// grown to keep the evaluations per move constant was tried and dropped: it
-// helped at a fixed number of rounds but slowed the repairs, which the
-// rounds wait for, and lost at a fixed time.
+// Computing 16, 2004) the moves are cheap and most random partners could not
+// swap: swap partners are drawn among the items allowed on the other
+// resource, ejection chains look at more items of the overloaded resource
+// (see ejectEvals) and the window grows, to at most maxWindow items (twice
+// window: at four times the repairs got slower, and the rounds wait for
+// them, so it lost at a fixed time on the 20-agent type D file).
 const (
-	window        = 32
+	window = 32
+	// A narrowed model (short allowed lists, see SearchSettings.Focus)
+	// makes each window item cheap: the window then grows so that a move
+	// evaluates about as many shifts as with windowShifts resources per
+	// item, up to maxWindow items.
+	windowShifts  = 16
+	maxWindow     = 64
 	fullWindow    = 200 // up to this many items, a move looks at all of them
 	swapResources = 3
 	swapPartners  = 8
@@ -62,6 +67,7 @@ type search struct {
 	pos     []int   // [j] index of j in members[asg[j]]
 	order   []int   // a random permutation of the items, scanned cyclically
 	cursor  int
+	winSize int // items per window on this model (see windowShifts)
 
 	// scratch of step
 	cands   pool
@@ -86,7 +92,7 @@ func newSearch(m, n int) *search {
 		order:   make([]int, n),
 		best:    make([]int, n),
 		cands:   pool{size: ejectStarts},
-		win:     make([]int, 0, window),
+		win:     make([]int, 0, maxWindow),
 		exc:     make([]float64, m),
 		topRes:  make([]int, 0, swapResources),
 		topCost: make([]float64, 0, swapResources),
@@ -107,6 +113,10 @@ func (s *search) reset(ctx context.Context, md *model, asg []int, rng *rand.Rand
 	}
 	rng.Shuffle(len(s.order), func(a, b int) { s.order[a], s.order[b] = s.order[b], s.order[a] })
 	s.cursor = 0
+	s.winSize = window
+	if per := float64(len(md.opt)) / float64(max(md.n, 1)); per < windowShifts {
+		s.winSize = min(maxWindow, int(window*windowShifts/max(per, 1)))
+	}
 	s.recompute()
 	s.bestCost = math.Inf(1)
 	s.haveBest = false
@@ -415,9 +425,9 @@ func (s *search) fillWindow() {
 		s.win = append(s.win, s.order...)
 		return
 	}
-	w := window
+	w := s.winSize
 	if s.over > 0 {
-		for tries := 0; len(s.win) < window/2 && tries < window; tries++ {
+		for tries := 0; len(s.win) < w/2 && tries < w; tries++ {
 			i := s.rng.IntN(s.m)
 			if s.load[i] <= s.limit[i] || len(s.members[i]) == 0 {
 				continue
