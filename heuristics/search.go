@@ -14,13 +14,32 @@ import (
 // the number of items. Instances of at most fullWindow items keep the whole
 // neighbourhood (every item, every swap partner, every ejected item), which
 // is what their quality needs and costs a bounded amount.
+//
+// On a narrowed model (the candidate lists of SearchSettings.Focus, after
+// the reduced-cost candidate lists of Yagiura, Ibaraki & Glover, INFORMS J.
+// Computing 16, 2004) the moves are cheap and most random partners could not
+// swap: swap partners are drawn among the items allowed on the other
+// resource, ejection chains look at more items of the overloaded resource
+// (see ejectEvals) and the window grows, to at most maxWindow items (twice
+// window: at four times the repairs got slower, and the rounds wait for
+// them, so it lost at a fixed time on the 20-agent type D file).
 const (
-	window        = 32
+	window = 32
+	// A narrowed model (short allowed lists, see SearchSettings.Focus)
+	// makes each window item cheap: the window then grows so that a move
+	// evaluates about as many shifts as with windowShifts resources per
+	// item, up to maxWindow items.
+	windowShifts  = 16
+	maxWindow     = 64
 	fullWindow    = 200 // up to this many items, a move looks at all of them
 	swapResources = 3
 	swapPartners  = 8
 	ejectStarts   = 6
 	ejectPartners = 4
+	// ejectEvals is the number of evaluations an ejection candidate may
+	// spend on the items it could eject: ejectPartners items at least, more
+	// when their allowed lists are short (narrowed models).
+	ejectEvals = 96
 	// ctxEvery is how many moves (or items in a descent pass) run between
 	// two looks at the context; a move costs a few microseconds.
 	ctxEvery = 32
@@ -48,6 +67,7 @@ type search struct {
 	pos     []int   // [j] index of j in members[asg[j]]
 	order   []int   // a random permutation of the items, scanned cyclically
 	cursor  int
+	winSize int // items per window on this model (see windowShifts)
 
 	// scratch of step
 	cands   pool
@@ -72,7 +92,7 @@ func newSearch(m, n int) *search {
 		order:   make([]int, n),
 		best:    make([]int, n),
 		cands:   pool{size: ejectStarts},
-		win:     make([]int, 0, window),
+		win:     make([]int, 0, maxWindow),
 		exc:     make([]float64, m),
 		topRes:  make([]int, 0, swapResources),
 		topCost: make([]float64, 0, swapResources),
@@ -93,6 +113,10 @@ func (s *search) reset(ctx context.Context, md *model, asg []int, rng *rand.Rand
 	}
 	rng.Shuffle(len(s.order), func(a, b int) { s.order[a], s.order[b] = s.order[b], s.order[a] })
 	s.cursor = 0
+	s.winSize = window
+	if per := float64(len(md.opt)) / float64(max(md.n, 1)); per < windowShifts {
+		s.winSize = min(maxWindow, int(window*windowShifts/max(per, 1)))
+	}
 	s.recompute()
 	s.bestCost = math.Inf(1)
 	s.haveBest = false
@@ -255,17 +279,22 @@ func (s *search) partners(j, a int, f func(k, b int)) {
 			s.topCost[q], s.topCost[q-1] = s.topCost[q-1], s.topCost[q]
 		}
 	}
+	cost := s.model.cost
 	for _, b := range s.topRes {
+		// swapPartners items of b allowed on a, from a random offset: on a
+		// narrowed model most items of b may not go to a, so they are
+		// skipped at the price of one look-up and the partners tried are
+		// ones that can swap
 		mb := s.members[b]
-		if len(mb) <= swapPartners {
-			for _, k := range mb {
-				f(k, b)
-			}
+		if len(mb) == 0 {
 			continue
 		}
 		off := s.rng.IntN(len(mb))
-		for q := 0; q < swapPartners; q++ {
-			f(mb[(off+q)%len(mb)], b)
+		for q, got := 0, 0; q < len(mb) && got < swapPartners; q++ {
+			if k := mb[(off+q)%len(mb)]; cost[k*m+a] <= maxFinite {
+				f(k, b)
+				got++
+			}
 		}
 	}
 }
@@ -396,9 +425,9 @@ func (s *search) fillWindow() {
 		s.win = append(s.win, s.order...)
 		return
 	}
-	w := window
+	w := s.winSize
 	if s.over > 0 {
-		for tries := 0; len(s.win) < window/2 && tries < window; tries++ {
+		for tries := 0; len(s.win) < w/2 && tries < w; tries++ {
 			i := s.rng.IntN(s.m)
 			if s.load[i] <= s.limit[i] || len(s.members[i]) == 0 {
 				continue
@@ -555,8 +584,8 @@ func (s *search) ejections(mv *move) {
 		exB0 := s.excess(b, lb)
 		mb := s.members[b]
 		cnt, off := len(mb), 0
-		if cnt > ejectPartners && s.n > fullWindow {
-			cnt, off = ejectPartners, s.rng.IntN(len(mb))
+		if lim := max(ejectPartners, ejectEvals*s.n/max(len(s.opt), 1)); cnt > lim && s.n > fullWindow {
+			cnt, off = lim, s.rng.IntN(len(mb))
 		}
 		for q := 0; q < cnt; q++ {
 			k := mb[(off+q)%len(mb)]

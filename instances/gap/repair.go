@@ -252,6 +252,15 @@ func (r *repairer) Repair(ctx context.Context, rin *decomp.RepairInput) (*decomp
 	search := rin.Final || rin.Stalled ||
 		(r.focus() != nil && r.calls%searchEvery == 0 && r.opt.Improve == (heuristics.ImproveSettings{}))
 	settings := r.improveSettings(rin.Final)
+	if rin.Best == nil && !rin.Final && r.opt.Improve == (heuristics.ImproveSettings{}) && !search {
+		// No plan yet: the price rounds aim their steps at the best plan's
+		// value, so a first plan far from the optimum (a descent from the
+		// first round's answers can leave it at three times the optimum on
+		// the 80-agent type E files) throws the prices far off for a
+		// hundred rounds. A short tabu search makes the first plan much
+		// closer.
+		settings.Moves = 3*in.Jobs + 200
+	}
 	if search && !rin.Final {
 		settings.Moves = -1 // the plan search below does the tabu moves
 	}
