@@ -31,6 +31,10 @@ type repairer struct {
 	firstPlanWork int
 	pen           []float64 // cost per capacity unit beyond capacity (a large penalty where no overtime)
 	pat           *pattern
+	// flat keeps the budget at work whatever the round: in the exact
+	// search the round is the node number, which would make late nodes'
+	// repairs ever dearer.
+	flat bool
 }
 
 const tol = 1e-9
@@ -290,8 +294,12 @@ func (r *repairer) feasible(x [][]float64) bool {
 // between repairs (200000 plus 3·n·T², times Options.Effort), times
 // 1 + round/10, so that the first rounds, which move the bound most, run
 // fast and a long run spends ever more of its time improving the best
-// plan; the last repair does four times more.
+// plan; the last repair does four times more. In the exact search (flat)
+// it stays at the base.
 func (r *repairer) budget(in *decomp.RepairInput) int {
+	if r.flat {
+		return r.work
+	}
 	b := r.work * (1 + min(in.Round, 100000)/10)
 	if in.Final {
 		b *= 4
