@@ -145,8 +145,9 @@ func (m *Model) Brancher() (decomp.Brancher, error) {
 	return newSetupBrancher(m.In, overtimeCosts(m.In, m.Opt)), nil
 }
 
-// setupBrancher chooses the setup to branch on from the node's relaxed
-// answers: in the period most over its capacity, the free setup on there
+// setupBrancher chooses the setup to branch on: with an averaged primal
+// answer (the volume rule), the free setup most fractional there (dive:
+// its rounded value); otherwise from the node's relaxed answers: in the period most over its capacity, the free setup on there
 // that loads it most (dive: off, which relieves the period); with no
 // period over capacity, the free setup whose forcing the node's penalties
 // price lowest (the one the relaxation is least sure of; dive: its
@@ -291,6 +292,9 @@ func (b *setupBrancher) Branch(in *decomp.BranchInput) (*decomp.Branching, error
 // the dive child.
 func (b *setupBrancher) pick(in *decomp.BranchInput) (int, int, float64) {
 	inst := b.in
+	if i, t, v := b.pickAveraged(in); i >= 0 {
+		return i, t, v
+	}
 	// The period most over its capacity (relative), among those with a
 	// free setup on; in it, the free setup that loads it most.
 	bi, bt, best := -1, -1, 1e-9
@@ -345,6 +349,29 @@ func (b *setupBrancher) pick(in *decomp.BranchInput) (int, int, float64) {
 		v = 1
 	}
 	return bi, bt, v
+}
+
+// pickAveraged returns the free setup whose value in the price rule's
+// averaged primal answer (the volume rule's) is nearest 1/2, and its
+// rounded value for the dive; -1 without an average or with every free
+// setup integral there.
+func (b *setupBrancher) pickAveraged(in *decomp.BranchInput) (int, int, float64) {
+	n, T := len(b.in.Items), b.in.Periods()
+	if len(in.Primal) < n {
+		return -1, -1, 0
+	}
+	bi, bt, bd, bv := -1, -1, 0.5-1e-6, 0.0
+	for i := 0; i < n; i++ {
+		for _, e := range in.Primal[i] {
+			if e.Index < 0 || e.Index >= T || b.fix[i][e.Index] >= 0 {
+				continue
+			}
+			if d := math.Abs(e.Value - 0.5); d < bd {
+				bi, bt, bd, bv = i, e.Index, d, math.Round(e.Value)
+			}
+		}
+	}
+	return bi, bt, bv
 }
 
 // itemLoad is item i's use of period t's capacity in the node's answers.

@@ -227,3 +227,37 @@ func TestExactMatchesCBC(t *testing.T) {
 		t.Logf("overtime %v: proved %v (CBC %v) in %d nodes", ot, res.Plan.Value, out.Objective, res.Tree.Nodes)
 	}
 }
+
+// The search is the same tree for any worker count (decomp.Search merges
+// in node order; the blocks, repair and brancher of each problem copy
+// share nothing).
+func TestExactWorkersAgree(t *testing.T) {
+	in, err := Generate(GenerateConfig{Items: 4, Periods: 6, Utilisation: 0.8, Seed: 7})
+	if err != nil {
+		t.Fatal(err)
+	}
+	m := &Model{In: in}
+	var first *decomp.SearchResult
+	for _, w := range []int{1, 2} {
+		br, err := m.Brancher()
+		if err != nil {
+			t.Fatal(err)
+		}
+		res, err := decomp.Search(context.Background(), m.ExactProblem, br, decomp.SearchSettings{Workers: w, Batch: 4, Seed: 3, Nodes: 400})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if res.Plan == nil {
+			t.Fatalf("workers %d: no plan", w)
+		}
+		if first == nil {
+			first = res
+			continue
+		}
+		if res.Plan.Value != first.Plan.Value || res.Bound != first.Bound || res.Tree.Nodes != first.Tree.Nodes || res.Status != first.Status {
+			t.Fatalf("workers %d: plan %v bound %v nodes %d %v; workers 1: plan %v bound %v nodes %d %v", w,
+				res.Plan.Value, res.Bound, res.Tree.Nodes, res.Status, first.Plan.Value, first.Bound, first.Tree.Nodes, first.Status)
+		}
+	}
+	t.Logf("plan %v, bound %v, %d nodes, %v", first.Plan.Value, first.Bound, first.Tree.Nodes, first.Status)
+}
