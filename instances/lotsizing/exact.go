@@ -86,14 +86,13 @@ func (b *setupBlock) Penalties(ctx context.Context, req *decomp.Request, ans *de
 
 // ExactProblem is the problem of the exact search (instances.Exact): the
 // model's, with item blocks that price the forcing of their setups (for
-// reduced-cost fixing) and a node repair whose pattern-search effort does
-// not grow with the node number (Options.Effort scales it; 0 means a
-// quarter of a plain run's first repair).
+// reduced-cost fixing) and a repair that spends at the root what a plain
+// run's first repair does and at every other node a twentieth of it
+// (Options.Effort scales both), never growing with the node number.
+// Measured on the TTM files g30 and f21: a node repair of a twentieth
+// gave the same tree as one of a quarter in 40% less time.
 func (m *Model) ExactProblem() (*decomp.Problem, error) {
 	opt := m.Opt
-	if opt.Effort <= 0 {
-		opt.Effort = 0.25
-	}
 	p, err := NewProblem(m.In, opt)
 	if err != nil {
 		return nil, err
@@ -106,7 +105,7 @@ func (m *Model) ExactProblem() (*decomp.Problem, error) {
 		p.Blocks[i] = &setupBlock{LotSizing: ls}
 	}
 	if r, ok := p.Repair.(*repairer); ok {
-		r.flat = true
+		r.nodeWork = max(1, r.work/20)
 	}
 	p.WorstPlanValue, p.HasWorstPlanValue = worstPlanValue(m.In, overtimeCosts(m.In, opt)), true
 	return p, nil

@@ -31,10 +31,10 @@ type repairer struct {
 	firstPlanWork int
 	pen           []float64 // cost per capacity unit beyond capacity (a large penalty where no overtime)
 	pat           *pattern
-	// flat keeps the budget at work whatever the round: in the exact
-	// search the round is the node number, which would make late nodes'
-	// repairs ever dearer.
-	flat bool
+	// nodeWork, when positive, is the budget of every repair but the
+	// first in the exact search, whatever the round: there the round is
+	// the node number, which would make late nodes' repairs ever dearer.
+	nodeWork int
 }
 
 const tol = 1e-9
@@ -294,11 +294,15 @@ func (r *repairer) feasible(x [][]float64) bool {
 // between repairs (200000 plus 3·n·T², times Options.Effort), times
 // 1 + round/10, so that the first rounds, which move the bound most, run
 // fast and a long run spends ever more of its time improving the best
-// plan; the last repair does four times more. In the exact search (flat)
-// it stays at the base.
+// plan; the last repair does four times more. In the exact search
+// (nodeWork set) the root's repair (round 0) gets the base and every
+// other node nodeWork.
 func (r *repairer) budget(in *decomp.RepairInput) int {
-	if r.flat {
-		return r.work
+	if r.nodeWork > 0 {
+		if in.Round == 0 {
+			return r.work
+		}
+		return r.nodeWork
 	}
 	b := r.work * (1 + min(in.Round, 100000)/10)
 	if in.Final {
