@@ -182,14 +182,20 @@ func newSetupBrancher(in *Instance, overtime []float64) *setupBrancher {
 
 // hardPenalty is the cost per capacity unit beyond capacity of the exact
 // pattern pricing: the overtime cost where allowed, elsewhere more than
-// any saving excess capacity could buy. A cycle of the pattern network
-// through one excess arc saves at most the stock arcs it passes, each
-// item's chain of them costing at most h_i/b_i·T, so a penalty above the
-// sum over items makes every optimal flow avoid excess when some flow
-// does; a flow that still uses excess marks the pattern infeasible.
+// any saving excess capacity could buy. The difference of an optimal
+// flow using excess and a flow using none is made of cycles; one through
+// an excess arc of the source leaves the source again by at most one
+// other arc (an overtime arc run backwards saves at most the largest
+// overtime cost) and passes stock arcs, each item's chain of them costing
+// at most h_i/b_i·T. A penalty above that sum makes every such cycle
+// dear, so an optimal flow avoids excess when some flow does, and a flow
+// that still uses excess marks the pattern infeasible.
 func hardPenalty(in *Instance, overtime []float64) []float64 {
 	T := in.Periods()
 	s := 1.0
+	for _, c := range overtime {
+		s = math.Max(s, 1+c)
+	}
 	for _, it := range in.Items {
 		s += it.SetupCost + it.Holding*float64(T)
 		if it.UnitTime > 0 {
