@@ -265,7 +265,7 @@ func (b *setupBrancher) Branch(in *decomp.BranchInput) (*decomp.Branching, error
 		}
 		return &decomp.Branching{Plan: b.planOf()}, nil
 	}
-	// The relaxed setups and loads (the answers honour the fixings).
+	// The relaxed setups (the answers honour the fixings).
 	for t := range b.load {
 		b.load[t] = 0
 	}
@@ -278,7 +278,10 @@ func (b *setupBrancher) Branch(in *decomp.BranchInput) (*decomp.Branching, error
 				b.y[i][e.Index] = true
 			}
 		}
-		for _, e := range in.Answers[i].Use {
+	}
+	// The rows' use in the answers: items load, overtime unloads.
+	for k := range in.Answers {
+		for _, e := range in.Answers[k].Use {
 			if e.Index >= 0 && e.Index < T {
 				b.load[e.Index] += e.Value
 			}
