@@ -50,6 +50,14 @@
 // the repair reports no plan for that round; the engine keeps the best
 // plan found.
 //
+// Exact mode (solve --exact, exact.go): decomp.Search branches on one
+// setup y_it at a time, off or on; the item blocks price the forcing of
+// each free setup exactly (the block solved again with it forced) for
+// reduced-cost fixing; a node whose relaxed setup pattern, priced by the
+// flow above, meets its bound is solved, and so is a node with every setup
+// decided. Costs may be fractional, so a proof closes within the search's
+// tolerance (about 1e-9 relative), never by rounding.
+//
 // Block numbering: blocks 0..n-1 are the items (variables as documented on
 // subproblem.LotSizing: Var t setup, T+t production, 2T+t stock); the
 // overtime blocks follow, one per period that allows overtime (Var 0 is

@@ -31,6 +31,10 @@ type repairer struct {
 	firstPlanWork int
 	pen           []float64 // cost per capacity unit beyond capacity (a large penalty where no overtime)
 	pat           *pattern
+	// nodeWork, when positive, is the budget of every repair but the
+	// first in the exact search, whatever the round: there the round is
+	// the node number, which would make late nodes' repairs ever dearer.
+	nodeWork int
 }
 
 const tol = 1e-9
@@ -207,7 +211,7 @@ func (r *repairer) Repair(ctx context.Context, in *decomp.RepairInput) (*decomp.
 		r.softPenalty(math.Pow(3, float64(k)))
 		ps.cost = ps.price(ps.y, ps.x)
 		if in.Best == nil {
-			ps.work += r.firstPlanWork
+			ps.work += r.firstWork(in)
 		} else {
 			ps.work += budget / 16
 		}
@@ -224,7 +228,7 @@ func (r *repairer) Repair(ctx context.Context, in *decomp.RepairInput) (*decomp.
 		// the other start.
 		keepY, keepX, keepCost := cloneB(ps.y), clone(ps.x), ps.cost
 		ps.start(construct(inst, r.pat.net))
-		ps.work += r.firstPlanWork
+		ps.work += r.firstWork(in)
 		ps.descend(ctx)
 		if keepCost < ps.cost {
 			copyB(ps.y, keepY)
@@ -290,8 +294,27 @@ func (r *repairer) feasible(x [][]float64) bool {
 // between repairs (200000 plus 3·n·T², times Options.Effort), times
 // 1 + round/10, so that the first rounds, which move the bound most, run
 // fast and a long run spends ever more of its time improving the best
-// plan; the last repair does four times more.
+// plan; the last repair does four times more. In the exact search
+// (nodeWork set) the root's repair (round 0) gets the base and every
+// other node nodeWork.
+// firstWork is the extra work of each attempt to reach a first plan:
+// firstPlanWork, but only nodeWork at the exact search's nodes past the
+// root, where a node without a plan in sight (an infeasible one, say)
+// must stay cheap.
+func (r *repairer) firstWork(in *decomp.RepairInput) int {
+	if r.nodeWork > 0 && in.Round > 0 {
+		return r.nodeWork
+	}
+	return r.firstPlanWork
+}
+
 func (r *repairer) budget(in *decomp.RepairInput) int {
+	if r.nodeWork > 0 {
+		if in.Round == 0 {
+			return r.work
+		}
+		return r.nodeWork
+	}
 	b := r.work * (1 + min(in.Round, 100000)/10)
 	if in.Final {
 		b *= 4
