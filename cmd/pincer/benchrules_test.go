@@ -202,3 +202,29 @@ func TestChooseRule(t *testing.T) {
 		}
 	}
 }
+
+// TestSolveReportsRuleChoice: without --rule a run uses the family's
+// default rule for the model, or the engine's when the family names none
+// (the choice relaxation of the assignment family); --rule given wins.
+// The report's rule and rule_chosen_by keys say which.
+func TestSolveReportsRuleChoice(t *testing.T) {
+	dir := t.TempDir()
+	for k, c := range []struct {
+		args     []string
+		rule, by string
+	}{
+		{[]string{"--format", "gap-orlib", "../../testdata/gap-c-5x30.txt"}, "deflected", ruleByFamily},
+		{[]string{"--format", "gap-orlib", "--relax", "choice", "../../testdata/gap-c-5x30.txt"}, decomp.Rules()[0], ruleByDefault},
+		{[]string{"--format", "gap-orlib", "--rule", "volume", "../../testdata/gap-c-5x30.txt"}, "volume", ruleByFlag},
+	} {
+		rep := filepath.Join(dir, strconv.Itoa(k)+".json")
+		args := append([]string{"solve", "--rounds", "20", "--quiet", "--report", rep}, c.args...)
+		if code, out, errs := runCLI(t, context.Background(), args...); code != exitOK {
+			t.Fatalf("%v: exit %d\n%s%s", c.args, code, out, errs)
+		}
+		m := readReport(t, rep)
+		if m["rule"] != c.rule || m["rule_chosen_by"] != c.by {
+			t.Errorf("%v: rule %v chosen by %v, want %s (%s)", c.args, m["rule"], m["rule_chosen_by"], c.rule, c.by)
+		}
+	}
+}
