@@ -129,32 +129,43 @@ func (m *Deflected) Update(s *RoundState, prices []float64) (Step, error) {
 	return Step{Length: t}, nil
 }
 
-const deflectedStateTag = "deflect1"
+// deflectedStateTag marks the state layout. Layout 1 lacked the last
+// step (its start and length), so a resumed run remembered the move
+// before last and drifted from the uninterrupted one; it is refused.
+const deflectedStateTag = "deflect2"
 
-// MarshalState implements StatefulMethod: θ, the idle count and the last
-// direction.
+// MarshalState implements StatefulMethod: θ, the idle count, the last
+// direction and the last step (the prices it started from and its
+// length), from which the next round measures the move the prices made.
 func (m *Deflected) MarshalState() ([]byte, error) {
 	b := append([]byte(nil), deflectedStateTag...)
 	b = binary.LittleEndian.AppendUint64(b, math.Float64bits(m.theta))
 	b = binary.LittleEndian.AppendUint64(b, uint64(m.idle))
-	return appendFloats(b, m.prev), nil
+	b = binary.LittleEndian.AppendUint64(b, math.Float64bits(m.tLast))
+	b = appendFloats(b, m.prev)
+	return appendFloats(b, m.last), nil
 }
 
 // UnmarshalState implements StatefulMethod.
 func (m *Deflected) UnmarshalState(data []byte) error {
 	rest, ok := cutTag(data, deflectedStateTag)
-	if !ok || len(rest) != 16+8*len(m.prev) {
-		return errors.New("decomp: not a deflected subgradient rule's state for this problem")
+	if !ok || len(rest) != 24+16*len(m.prev) {
+		return errors.New("decomp: not a deflected subgradient rule's state for this problem (or one of an older layout)")
 	}
 	theta := math.Float64frombits(binary.LittleEndian.Uint64(rest))
 	idle := binary.LittleEndian.Uint64(rest[8:])
-	if !(theta > 0) || math.IsInf(theta, 0) || idle > math.MaxInt32 {
-		return fmt.Errorf("decomp: deflected subgradient state out of range (θ %v, idle %d)", theta, idle)
+	tLast := math.Float64frombits(binary.LittleEndian.Uint64(rest[16:]))
+	if !(theta > 0) || math.IsInf(theta, 0) || idle > math.MaxInt32 || math.IsNaN(tLast) || math.IsInf(tLast, 0) {
+		return fmt.Errorf("decomp: deflected subgradient state out of range (θ %v, idle %d, last step %v)", theta, idle, tLast)
 	}
-	if err := readFloats(rest[16:], m.prev); err != nil {
+	n := 8 * len(m.prev)
+	if err := readFloats(rest[24:24+n], m.prev); err != nil {
 		return err
 	}
-	m.theta, m.idle = theta, int(idle)
+	if err := readFloats(rest[24+n:], m.last); err != nil {
+		return err
+	}
+	m.theta, m.idle, m.tLast = theta, int(idle), tLast
 	return nil
 }
 

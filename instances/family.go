@@ -85,6 +85,15 @@ type NoPlanNoter interface {
 	NoPlanNote() string
 }
 
+// RuleChooser is a model that names its default price-update rule (one
+// of decomp.Rules()), chosen from measurements on its family's benchmark
+// sets. A rule given on the command line wins; a name the engine does not
+// know, or a rule the problem is too large for, falls back to the
+// engine's default.
+type RuleChooser interface {
+	DefaultRule() string
+}
+
 // MPSExporter writes the full model in free MPS.
 type MPSExporter interface {
 	WriteMPS(w io.Writer) error

@@ -10,7 +10,6 @@ import (
 	"os/exec"
 	"path/filepath"
 	"runtime"
-	"slices"
 	"strconv"
 	"strings"
 	"time"
@@ -25,7 +24,10 @@ type benchFlags struct {
 	time       time.Duration
 	peer       string
 	workers    int
-	rule       string
+	rule       []string // as given: names, maybe comma-separated
+	rules      []string // parsed by check; empty: each row's default rule
+	marksText  string
+	marks      []time.Duration // parsed by check, increasing
 	gap        float64
 	seed       uint64
 	csv        string
@@ -61,7 +63,8 @@ plan and bound, and the rows done so far are written.`,
 	fl.DurationVar(&f.time, "time", 10*time.Second, "wall-clock limit of each run, pincer's and the peer's (more than 0)")
 	fl.StringVar(&f.peer, "peer", "", "also run this general-purpose solver on the exported MPS model: cbc")
 	fl.IntVar(&f.workers, "workers", runtime.NumCPU(), "goroutines evaluating blocks, and the peer's thread count (at least 1)")
-	fl.StringVar(&f.rule, "rule", decomp.Rules()[0], "price-update rule: "+strings.Join(decomp.Rules(), ", "))
+	fl.StringSliceVar(&f.rule, "rule", nil, "price-update rules, separated by commas or the flag repeated: each row runs under each in turn ("+strings.Join(decomp.Rules(), ", ")+"; default: the family's default rule)")
+	fl.StringVar(&f.marksText, "marks", "", "also record each run's bound and plan at these times, separated by commas (e.g. 1s,10s,60s; each at most --time)")
 	fl.Float64Var(&f.gap, "gap", 1e-4, "stop a run when the relative gap between plan and bound is at most this (a fraction, at least 0)")
 	fl.Uint64Var(&f.seed, "seed", 1, "seed for the repair heuristics")
 	fl.StringVar(&f.csv, "csv", "", "also write the table as CSV to this file (- for standard output)")
@@ -87,12 +90,17 @@ func (f *benchFlags) check() error {
 		return bad("workers", f.workers, "at least 1")
 	case f.peer != "" && f.peer != "cbc":
 		return bad("peer", f.peer, "cbc")
-	case !slices.Contains(decomp.Rules(), f.rule):
-		return bad("rule", f.rule, "one of "+strings.Join(decomp.Rules(), ", "))
 	case math.IsNaN(f.gap) || f.gap < 0 || math.IsInf(f.gap, 0):
 		return bad("gap", f.gap, "a number at least 0")
 	case f.chart == stdoutPath:
 		return badInput(errors.New("--chart -: the chart must go to a file"))
+	}
+	var err error
+	if f.rules, err = parseRuleList(f.rule); err != nil {
+		return err
+	}
+	if f.marks, err = parseMarks(f.marksText, f.time); err != nil {
+		return err
 	}
 	if err := checkWritable("--csv", f.csv); err != nil {
 		return err
@@ -103,6 +111,8 @@ func (f *benchFlags) check() error {
 // benchResult is the outcome of one manifest row.
 type benchResult struct {
 	row    resolvedRow
+	rule   string // the price rule that ran
+	ruleBy string // where it came from (see chooseRule)
 	status string // done, interrupted, error
 	note   string
 	sense  decomp.Sense
@@ -119,7 +129,8 @@ type benchResult struct {
 	seconds  float64
 	threads  int
 
-	peer *peerOutcome // nil when no peer ran
+	peer  *peerOutcome // nil when no peer ran
+	marks []markValue  // one per --marks value (empty on error)
 }
 
 // deviation is how much worse than the reference a value is, as a
@@ -206,30 +217,46 @@ func runBench(ctx context.Context, stdout, stderr io.Writer, f *benchFlags, mani
 			fmt.Fprintf(stderr, "pincer: --peer cbc: cbc is not installed (Debian: apt-get install coinor-cbc); the table has no peer columns\n")
 		}
 	}
-	prog := newBenchProgress(stderr, len(rows))
+	// Each row runs under each rule back to back, so the rules of a row
+	// see the same machine load.
+	rules := f.rules
+	if len(rules) == 0 {
+		rules = []string{""}
+	}
+	runs := len(rows) * len(rules)
+	prog := newBenchProgress(stderr, runs)
 	var results []*benchResult
-	for k, rr := range rows {
-		if ctx.Err() != nil {
-			break
+	k := 0
+rows:
+	for _, rr := range rows {
+		for _, rule := range rules {
+			if ctx.Err() != nil {
+				break rows
+			}
+			if f.onRow != nil {
+				f.onRow(k)
+			}
+			k++
+			prog.start(benchLabel(rr.name, rule, len(f.rules) > 1))
+			var peer *peerOutcome // the peer runs once per row, beside the first rule
+			if len(results) > 0 && results[len(results)-1].row.name == rr.name {
+				peer = results[len(results)-1].peer
+			}
+			r := runBenchRow(ctx, f, rr, rule, peerBin, peer)
+			results = append(results, r)
+			prog.finish(r)
 		}
-		if f.onRow != nil {
-			f.onRow(k)
-		}
-		prog.start(rr.name)
-		r := runBenchRow(ctx, f, rr, peerBin)
-		results = append(results, r)
-		prog.finish(r)
 	}
 	prog.done()
 	interrupted := ctx.Err() != nil
-	printBenchTable(stdout, f, peerBin != "", results, len(rows), interrupted)
+	printBenchTable(stdout, f, peerBin != "", results, runs, interrupted)
 	if f.csv != "" {
-		if err := writeBenchCSVFile(f.csv, stdout, peerBin != "", results); err != nil {
+		if err := writeBenchCSVFile(f.csv, stdout, peerBin != "", f.marks, results); err != nil {
 			return &exitError{code: exitInternal, err: err}
 		}
 	}
 	if f.chart != "" {
-		if err := writeBenchChartFile(f.chart, man.file, peerBin != "", results); err != nil {
+		if err := writeBenchChartFile(f.chart, man.file, peerBin != "", len(f.rules) > 1, results); err != nil {
 			return &exitError{code: exitInternal, err: err}
 		}
 	}
@@ -241,16 +268,18 @@ func runBench(ctx context.Context, stdout, stderr io.Writer, f *benchFlags, mani
 	}
 	switch {
 	case interrupted:
-		return &exitError{code: exitInterrupted, err: fmt.Errorf("interrupted after %d of %d rows; the rows done were written", len(results), len(rows))}
+		return &exitError{code: exitInterrupted, err: fmt.Errorf("interrupted after %d of %d runs; the runs done were written", len(results), runs)}
 	case failed > 0:
-		return badInput(fmt.Errorf("%d of %d rows could not run (the table says why)", failed, len(rows)))
+		return badInput(fmt.Errorf("%d of %d runs could not start (the table says why)", failed, runs))
 	}
 	return nil
 }
 
-// runBenchRow loads and solves one row, then runs the peer on it.
-func runBenchRow(ctx context.Context, f *benchFlags, rr resolvedRow, peerBin string) *benchResult {
-	r := &benchResult{row: rr, threads: f.workers, gap: math.Inf(1)}
+// runBenchRow loads and solves one row under rule ("" for the row's
+// default rule), then runs the peer on it, unless peer already holds the
+// peer's outcome on this row (from the row's first rule).
+func runBenchRow(ctx context.Context, f *benchFlags, rr resolvedRow, rule, peerBin string, peer *peerOutcome) *benchResult {
+	r := &benchResult{row: rr, rule: rule, threads: f.workers, gap: math.Inf(1)}
 	if rr.unknown != nil {
 		r.status, r.note = "error", strings.TrimSuffix(rr.unknown.Error(), ": "+errUnknownFormat.Error())
 		return r
@@ -263,13 +292,14 @@ func runBenchRow(ctx context.Context, f *benchFlags, rr resolvedRow, peerBin str
 	r.sense, r.size = m.Sense(), m.Size()
 	p, err := m.Problem()
 	if err == nil {
-		err = ruleFits(f.rule, p)
+		r.rule, r.ruleBy = chooseRule(rule, m, p)
+		err = ruleFits(r.rule, p)
 	}
 	if err != nil {
 		r.status, r.note = "error", err.Error()
 		return r
 	}
-	settings, err := engineSettings(f.gap, f.time, 0, f.seed, f.workers, f.rule)
+	settings, err := engineSettings(f.gap, f.time, 0, f.seed, f.workers, r.rule)
 	if err != nil {
 		r.status, r.note = "error", err.Error()
 		return r
@@ -288,7 +318,12 @@ func runBenchRow(ctx context.Context, f *benchFlags, rr resolvedRow, peerBin str
 	if res.Plan != nil {
 		r.plan, r.hasPlan = res.Plan.Value, true
 	}
-	if peerBin != "" {
+	r.marks = valuesAtMarks(res, f.time, f.marks)
+	switch {
+	case peerBin == "":
+	case peer != nil:
+		r.peer = peer
+	default:
 		if ctx.Err() != nil {
 			r.peer = &peerOutcome{status: "not-run", note: "interrupted", threads: f.workers}
 		} else {

@@ -271,7 +271,7 @@ func TestBenchEndToEnd(t *testing.T) {
 		args = append(args, "--peer", "cbc")
 	}
 	code, out, errs := runCLI(t, context.Background(), args...)
-	if code != exitBadInput || !strings.Contains(errs, "1 of 3 rows could not run") {
+	if code != exitBadInput || !strings.Contains(errs, "1 of 3 runs could not start") {
 		t.Fatalf("exit %d (want 2 for the unknown format), stderr %s", code, errs)
 	}
 	if !strings.Contains(out, "format wt-orlib-future is not known to this build") || !strings.Contains(out, "c530-max") {
@@ -379,7 +379,7 @@ func TestBenchInterruptKeepsRows(t *testing.T) {
 	defer cancel()
 	// A time limit is a budget: the first row runs its whole limit, so the
 	// limit is short; the second is interrupted 0.3 s after it starts.
-	f := benchFlags{time: 3 * time.Second, workers: 1, rule: "subgradient", gap: 0, seed: 1, csv: csvPath, chart: chart, benchmarks: "../../testdata"}
+	f := benchFlags{time: 3 * time.Second, workers: 1, rule: []string{"subgradient"}, gap: 0, seed: 1, csv: csvPath, chart: chart, benchmarks: "../../testdata"}
 	f.onRow = func(k int) {
 		if k == 1 {
 			time.AfterFunc(300*time.Millisecond, cancel)
@@ -402,7 +402,7 @@ func TestBenchInterruptKeepsRows(t *testing.T) {
 	if rows[1]["plan"] == "" || rows[1]["bound"] == "" {
 		t.Errorf("the interrupted row lost its best plan or bound: %v", rows[1])
 	}
-	if !strings.Contains(out.String(), "Interrupted: 2 of 3 rows run") || strings.Contains(out.String(), "c530-again") {
+	if !strings.Contains(out.String(), "Interrupted: 2 of 3 runs done") || strings.Contains(out.String(), "c530-again") {
 		t.Errorf("table:\n%s", out.String())
 	}
 	checkBenchSVG(t, chart, "c530", "d10200")
@@ -421,6 +421,10 @@ func TestBenchFlags(t *testing.T) {
 		{[]string{"--peer", "other"}, "--peer other: want cbc"},
 		{[]string{"--workers", "0"}, "--workers 0: want at least 1"},
 		{[]string{"--rule", "fastest"}, "--rule fastest: want one of"},
+		{[]string{"--rule", "volume,volume"}, "--rule volume: the rule is given twice"},
+		{[]string{"--marks", "1s,x"}, `--marks 1s,x: "x" is not a duration`},
+		{[]string{"--marks", "0s"}, "want a duration more than 0"},
+		{[]string{"--marks", "20s"}, "20s is past --time 10s"},
 		{[]string{"--chart", "-"}, "--chart -: the chart must go to a file"},
 		{[]string{"--csv", t.TempDir()}, "is a folder"},
 	} {
@@ -465,10 +469,10 @@ func TestBenchChartDeterministic(t *testing.T) {
 		{row: resolvedRow{manifestRow: manifestRow{name: "b"}}, status: "error", note: "no file"},
 	}
 	var x, y bytes.Buffer
-	if err := writeBenchChart(&x, "m.csv", true, rows); err != nil {
+	if err := writeBenchChart(&x, "m.csv", true, false, rows); err != nil {
 		t.Fatal(err)
 	}
-	if err := writeBenchChart(&y, "m.csv", true, rows); err != nil {
+	if err := writeBenchChart(&y, "m.csv", true, false, rows); err != nil {
 		t.Fatal(err)
 	}
 	if !bytes.Equal(x.Bytes(), y.Bytes()) || !strings.Contains(x.String(), ">a<") {

@@ -11,6 +11,7 @@ import (
 	"strconv"
 	"strings"
 	"text/tabwriter"
+	"time"
 
 	"github.com/schollz/progressbar/v3"
 	"golang.org/x/term"
@@ -67,7 +68,11 @@ func (p *benchProgress) finish(r *benchResult) {
 		_ = p.bar.Add(1)
 		return
 	}
-	fmt.Fprintf(p.w, "bench %d/%d %s: %s\n", p.finished, p.total, r.row.name, r.describe())
+	name := r.row.name
+	if r.rule != "" {
+		name += " (" + r.rule + ")"
+	}
+	fmt.Fprintf(p.w, "bench %d/%d %s: %s\n", p.finished, p.total, name, r.describe())
 }
 
 func (p *benchProgress) done() {
@@ -100,9 +105,17 @@ func pct(v float64) string {
 
 // printBenchTable writes the side-by-side table.
 func printBenchTable(w io.Writer, f *benchFlags, peer bool, rows []*benchResult, total int, interrupted bool) {
-	fmt.Fprintf(w, "bench: %d of %d rows, %s per run, %d threads, rule %s\n\n", len(rows), total, f.time, f.workers, f.rule)
+	rules := "each row's default"
+	if len(f.rules) > 0 {
+		rules = strings.Join(f.rules, ", ")
+	}
+	fmt.Fprintf(w, "bench: %d of %d runs, %s per run, %d threads, rule %s\n\n", len(rows), total, f.time, f.workers, rules)
 	tw := tabwriter.NewWriter(w, 2, 4, 2, ' ', 0)
-	head := "instance\treference\tplan\tbound\tgap\t"
+	head := "instance\trule\treference\tplan\tbound\tgap\t"
+	for _, at := range f.marks {
+		mk := markName(at)
+		head += "bound " + mk + "\tplan " + mk + "\t"
+	}
 	if peer {
 		head += "cbc plan\tcbc bound\tcbc gap\t"
 	}
@@ -118,11 +131,19 @@ func printBenchTable(w io.Writer, f *benchFlags, peer bool, rows []*benchResult,
 	fmt.Fprintln(tw, head)
 	for _, r := range rows {
 		var c []string
-		c = append(c, r.row.name, r.referenceText())
+		c = append(c, r.row.name, r.ruleText(), r.referenceText())
 		if r.status == "error" {
 			c = append(c, "-", "-", "-")
 		} else {
 			c = append(c, dash(r.planOrNaN()), dash(r.boundOrNaN()), fmtGap(r.gap))
+		}
+		for k := range f.marks {
+			if k < len(r.marks) {
+				mv := r.marks[k]
+				c = append(c, dash(orNaN(mv.bound, mv.hasBound)), dash(orNaN(mv.plan, mv.hasPlan)))
+			} else {
+				c = append(c, "-", "-")
+			}
 		}
 		if peer {
 			c = append(c, dash(r.peer.planOrNaN()), dash(r.peer.boundOrNaN()), fmtGap(r.peer.gap()))
@@ -150,10 +171,36 @@ func printBenchTable(w io.Writer, f *benchFlags, peer bool, rows []*benchResult,
 	fmt.Fprintln(w, "\ndeviation = (plan − reference) / |reference|, positive when the plan is worse (for max, reference − plan);")
 	fmt.Fprintln(w, "gap = |plan − bound| / max(1, |plan|). A bound never passes an optimal or best-known reference, and no plan")
 	fmt.Fprintln(w, "beats an optimal one: a note says so when one does.")
+	fmt.Fprintln(w, "rule*: the family's default rule for the instance (no --rule given).")
+	if len(f.marks) > 0 {
+		fmt.Fprintln(w, "bound T, plan T: the best bound and plan after T of the run (the final ones when the run ended earlier).")
+	}
+	if len(f.marks) > 0 || len(f.rules) > 1 {
+		printMarkSummary(w, rows, f.marks)
+	}
 	if interrupted {
-		fmt.Fprintf(w, "Interrupted: %d of %d rows run; the last one stopped early with its best plan and bound.\n", len(rows), total)
+		fmt.Fprintf(w, "Interrupted: %d of %d runs done; the last one stopped early with its best plan and bound.\n", len(rows), total)
 	}
 	fmt.Fprintln(w, caution)
+}
+
+// ruleText is the rule column: the rule, starred when it is the row's
+// family default.
+func (r *benchResult) ruleText() string {
+	switch {
+	case r.rule == "":
+		return "-"
+	case r.ruleBy == ruleByFamily:
+		return r.rule + "*"
+	}
+	return r.rule
+}
+
+func orNaN(v float64, ok bool) float64 {
+	if !ok {
+		return math.NaN()
+	}
+	return v
 }
 
 // notes are a row's status words for the table: errors, stops that are
@@ -180,12 +227,12 @@ func (r *benchResult) notes(peer bool) []string {
 }
 
 // writeBenchCSVFile writes the CSV table to path ("-" is stdout).
-func writeBenchCSVFile(path string, stdout io.Writer, peer bool, rows []*benchResult) error {
+func writeBenchCSVFile(path string, stdout io.Writer, peer bool, marks []time.Duration, rows []*benchResult) error {
 	out, err := createOutput(path, stdout)
 	if err != nil {
 		return fmt.Errorf("--csv: %w", err)
 	}
-	if err := writeBenchCSV(out, peer, rows); err != nil {
+	if err := writeBenchCSV(out, peer, marks, rows); err != nil {
 		out.Close()
 		return fmt.Errorf("--csv %s: %w", path, err)
 	}
@@ -194,9 +241,16 @@ func writeBenchCSVFile(path string, stdout io.Writer, peer bool, rows []*benchRe
 
 // writeBenchCSV writes one line per row. gap and deviation are fractions,
 // as in the report; empty cells mean no value.
-func writeBenchCSV(w io.Writer, peer bool, rows []*benchResult) error {
+//
+// Each mark T adds bound_T, plan_T, bound_gap_T (how far the bound falls
+// short of the reference, a fraction) and deviation_T.
+func writeBenchCSV(w io.Writer, peer bool, marks []time.Duration, rows []*benchResult) error {
 	cw := csv.NewWriter(w)
-	head := []string{"name", "format", "file", "index", "sense", "size", "reference", "kind", "status", "plan", "bound", "gap", "proved", "stop", "rounds", "seconds", "threads"}
+	head := []string{"name", "rule", "rule_chosen_by", "format", "file", "index", "sense", "size", "reference", "kind", "status", "plan", "bound", "gap", "proved", "stop", "rounds", "seconds", "threads"}
+	for _, at := range marks {
+		mk := markName(at)
+		head = append(head, "bound_"+mk, "plan_"+mk, "bound_gap_"+mk, "deviation_"+mk)
+	}
 	if peer {
 		head = append(head, "cbc_status", "cbc_plan", "cbc_bound", "cbc_gap", "cbc_seconds", "cbc_threads")
 	}
@@ -230,7 +284,7 @@ func writeBenchCSV(w io.Writer, peer bool, rows []*benchResult) error {
 		if r.row.hasReference {
 			ref = strconv.FormatFloat(r.row.reference, 'f', -1, 64)
 		}
-		rec := []string{r.row.name, r.row.format, r.row.file, r.row.index, sense, r.size, ref, r.row.kind, r.status}
+		rec := []string{r.row.name, r.rule, r.ruleBy, r.row.format, r.row.file, r.row.index, sense, r.size, ref, r.row.kind, r.status}
 		if r.status == "error" {
 			rec = append(rec, "", "", "", "", "", "", "")
 		} else {
@@ -238,6 +292,15 @@ func writeBenchCSV(w io.Writer, peer bool, rows []*benchResult) error {
 				r.stop, strconv.Itoa(r.rounds), strconv.FormatFloat(r.seconds, 'f', 2, 64))
 		}
 		rec = append(rec, strconv.Itoa(r.threads))
+		for k := range marks {
+			if k >= len(r.marks) {
+				rec = append(rec, "", "", "", "")
+				continue
+			}
+			mv := r.marks[k]
+			rec = append(rec, num(mv.bound, mv.hasBound), num(mv.plan, mv.hasPlan),
+				frac(boundGap(mv.bound, mv.hasBound, r)), frac(deviation(mv.plan, mv.hasPlan, r)))
+		}
 		if peer {
 			if p := r.peer; p != nil {
 				secs := ""
@@ -268,12 +331,12 @@ func writeBenchCSV(w io.Writer, peer bool, rows []*benchResult) error {
 }
 
 // writeBenchChartFile draws the chart to path.
-func writeBenchChartFile(path, manifest string, peer bool, rows []*benchResult) error {
+func writeBenchChartFile(path, manifest string, peer, several bool, rows []*benchResult) error {
 	out, err := os.Create(path)
 	if err != nil {
 		return fmt.Errorf("--chart: %w", err)
 	}
-	if err := writeBenchChart(out, filepath.Base(manifest), peer, rows); err != nil {
+	if err := writeBenchChart(out, filepath.Base(manifest), peer, several, rows); err != nil {
 		out.Close()
 		return fmt.Errorf("--chart %s: %w", path, err)
 	}
@@ -289,7 +352,7 @@ var (
 // percent, pincer's and the peer's side by side at the instance's
 // position; rows without a plan or a reference have no point. The chart
 // depends only on the rows, so the same table gives the same file.
-func writeBenchChart(w io.Writer, title string, peer bool, rows []*benchResult) error {
+func writeBenchChart(w io.Writer, title string, peer, several bool, rows []*benchResult) error {
 	p := plot.New()
 	p.Title.Text = title + ": plan deviation from the reference (positive: worse)"
 	p.Y.Label.Text = "deviation (%)"
@@ -297,7 +360,7 @@ func writeBenchChart(w io.Writer, title string, peer bool, rows []*benchResult) 
 	var ours, theirs plotter.XYs
 	const shift = 0.15
 	for k, r := range rows {
-		names[k] = r.row.name
+		names[k] = benchLabel(r.row.name, r.rule, several)
 		if d := deviation(r.plan, r.hasPlan, r); !math.IsNaN(d) {
 			ours = append(ours, plotter.XY{X: float64(k) - shift, Y: 100 * d})
 		}

@@ -102,10 +102,14 @@ func runFingerprint(f *runFlags) string {
 	parts = append(parts,
 		fmt.Sprintf("rounds=%d", f.rounds), fmt.Sprintf("gap=%v", f.gap), fmt.Sprintf("seed=%d", f.seed),
 		fmt.Sprintf("repair-every=%d", f.repairEvery), stallSetting(f))
-	if f.rule != decomp.Rules()[0] {
-		// The default rule is left out, so checkpoints written before
-		// rules could be chosen still match.
-		parts = append(parts, "rule="+f.rule)
+	rule := f.ruleUsed // the rule the run uses, given or chosen
+	if rule == "" {
+		rule = f.rule
+	}
+	if rule != "" && rule != decomp.Rules()[0] {
+		// The engine's default rule is left out, so checkpoints written
+		// before rules could be chosen still match.
+		parts = append(parts, "rule="+rule)
 	}
 	return strings.Join(parts, " ")
 }

@@ -79,7 +79,10 @@ type report struct {
 	Seconds       num    `json:"seconds"`
 	Workers       int    `json:"workers"`
 	Seed          uint64 `json:"seed"`
-	Rule          string `json:"rule"` // the price-update rule
+	Rule          string `json:"rule"` // the price-update rule that ran
+	// RuleChosenBy says where Rule came from: "--rule", "family default"
+	// (the model's own choice) or "engine default".
+	RuleChosenBy string `json:"rule_chosen_by"`
 	// WarmStart says where the starting prices came from (null: zero).
 	WarmStart *warmJSON `json:"warm_start"`
 	// PrimalAverage is the volume rule's fractional primal solution, when

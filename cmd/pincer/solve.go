@@ -38,12 +38,15 @@ type runFlags struct {
 	stall       int
 	stallGiven  bool // --stall was on the command line (set by check)
 	history     string
-	rule        string
-	plot        string
-	primal      bool
-	checkpoints checkpointFlags // solve only
-	warm        warmFlags       // solve only
-	exact       exactFlags      // solve only
+	rule        string // as given; "" for the model's default
+	// ruleUsed and ruleBy are the rule a run uses and where it came from
+	// (set by solveModel, see chooseRule).
+	ruleUsed, ruleBy string
+	plot             string
+	primal           bool
+	checkpoints      checkpointFlags // solve only
+	warm             warmFlags       // solve only
+	exact            exactFlags      // solve only
 }
 
 func (f *runFlags) register(cmd *cobra.Command) {
@@ -60,7 +63,7 @@ func (f *runFlags) register(cmd *cobra.Command) {
 	fl.IntVar(&f.top, "top", 5, "shared resources listed in the summary (at least 0)")
 	fl.IntVar(&f.repairEvery, "repair-every", 0, "repair every this many rounds (0: engine default; at least 0)")
 	fl.IntVar(&f.stall, "stall", 0, "stop after this many rounds without a better bound or plan (0: 300; at least 0); when not given, a run with --time uses its whole time unless the gap closes")
-	fl.StringVar(&f.rule, "rule", decomp.Rules()[0], "price-update rule: "+strings.Join(decomp.Rules(), ", "))
+	fl.StringVar(&f.rule, "rule", "", ruleHelp())
 	fl.BoolVar(&f.primal, "primal-average", false, "add the volume rule's averaged (fractional) block answers to the report as primal_average (needs --rule volume)")
 	fl.StringVar(&f.plot, "plot", "", "draw bound, plan value and the most binding rows' prices over time as SVG to this file")
 	fl.StringVar(&f.history, "history", "summary", "report history: summary (every improvement plus a thinned trace, at most 2000 rounds) or full")
@@ -83,9 +86,9 @@ func (f *runFlags) check(cmd *cobra.Command) error {
 		return bad("log-format", f.logFormat, "one of text, json")
 	case f.history != "summary" && f.history != "full":
 		return bad("history", f.history, "one of summary, full")
-	case !slices.Contains(decomp.Rules(), f.rule):
+	case f.rule != "" && !slices.Contains(decomp.Rules(), f.rule):
 		return bad("rule", f.rule, "one of "+strings.Join(decomp.Rules(), ", "))
-	case f.primal && f.rule != "volume":
+	case f.primal && f.rule != "" && f.rule != "volume":
 		return badInput(fmt.Errorf("--primal-average needs --rule volume (the rule that builds it), not %s", f.rule))
 	case f.workers < 1:
 		return bad("workers", f.workers, "at least 1")
@@ -186,7 +189,11 @@ func solveModel(ctx context.Context, stdout, stderr io.Writer, f *runFlags, file
 	if err != nil {
 		return nil, badInput(err)
 	}
-	settings, err := engineSettings(f.gap, f.time, f.rounds, f.seed, f.workers, f.rule)
+	f.ruleUsed, f.ruleBy = chooseRule(f.rule, m, p)
+	if f.primal && f.ruleUsed != "volume" {
+		return nil, badInput(fmt.Errorf("--primal-average needs --rule volume (the rule that builds it); this run's rule is %s (%s)", f.ruleUsed, f.ruleBy))
+	}
+	settings, err := engineSettings(f.gap, f.time, f.rounds, f.seed, f.workers, f.ruleUsed)
 	if err != nil {
 		return nil, badInput(err)
 	}
@@ -199,7 +206,7 @@ func solveModel(ctx context.Context, stdout, stderr io.Writer, f *runFlags, file
 			settings.StallRounds = 300
 		}
 	}
-	if err := ruleFits(f.rule, p); err != nil {
+	if err := ruleFits(f.ruleUsed, p); err != nil {
 		return nil, err
 	}
 	var warm *warmJSON
@@ -252,7 +259,7 @@ func solveModel(ctx context.Context, stdout, stderr io.Writer, f *runFlags, file
 	if f.report != "" {
 		rep, err := buildReport(f.format, file, f.opts.values().Int("index"), f.workers, f.seed, f.history == "full", m, res)
 		if rep != nil {
-			rep.Rule, rep.WarmStart = f.rule, warm
+			rep.Rule, rep.RuleChosenBy, rep.WarmStart = f.ruleUsed, f.ruleBy, warm
 			if pa, ok := settings.Method.(decomp.PrimalAverager); ok && f.primal {
 				rep.PrimalAverage = primalJSON(pa.AveragePrimal())
 			}

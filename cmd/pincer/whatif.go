@@ -79,7 +79,7 @@ they predict small changes well and large ones less so.`,
 	fl.Float64Var(&f.gap, "gap", 1e-4, "stop a solve when the relative gap is at most this (a fraction, at least 0)")
 	fl.IntVar(&f.workers, "workers", runtime.NumCPU(), "goroutines evaluating blocks (at least 1)")
 	fl.Uint64Var(&f.seed, "seed", 1, "seed for the repair heuristics")
-	fl.StringVar(&f.rule, "rule", decomp.Rules()[0], "price-update rule: "+strings.Join(decomp.Rules(), ", "))
+	fl.StringVar(&f.rule, "rule", "", ruleHelp())
 	fl.StringArrayVar(&f.rhs, "rhs", nil, `change a resource's capacity: "NAME=+40", "NAME=-10%", "NAME==120" (repeatable)`)
 	fl.StringArrayVar(&f.open, "open", nil, "force a part (a facility site) open (repeatable)")
 	fl.StringArrayVar(&f.close, "close", nil, "force a part (a facility site) closed (repeatable)")
@@ -100,7 +100,7 @@ func (f *whatifFlags) check() ([]change, error) {
 		return nil, bad("rounds", f.rounds, "at least 0")
 	case math.IsNaN(f.gap) || f.gap < 0 || math.IsInf(f.gap, 0):
 		return nil, bad("gap", f.gap, "a number at least 0")
-	case !slices.Contains(decomp.Rules(), f.rule):
+	case f.rule != "" && !slices.Contains(decomp.Rules(), f.rule):
 		return nil, bad("rule", f.rule, "one of "+strings.Join(decomp.Rules(), ", "))
 	}
 	var out []change
@@ -179,11 +179,12 @@ func runWhatif(ctx context.Context, stdout, stderr io.Writer, f *whatifFlags, m 
 		if warm != nil && sameRows(p.Rows, warm.Rows) && len(warm.Prices) == len(p.Rows) {
 			p.Prices = append([]float64(nil), warm.Prices...)
 		}
-		s, err := engineSettings(f.gap, f.time, f.rounds, f.seed, f.workers, f.rule)
+		rule, _ := chooseRule(f.rule, m, p)
+		s, err := engineSettings(f.gap, f.time, f.rounds, f.seed, f.workers, rule)
 		if err != nil {
 			return nil, badInput(err)
 		}
-		if err := ruleFits(f.rule, p); err != nil {
+		if err := ruleFits(rule, p); err != nil {
 			return nil, err
 		}
 		res, err := decomp.Solve(ctx, p, s)
