@@ -154,6 +154,13 @@ func solveExact(ctx context.Context, stdout, stderr io.Writer, f *runFlags, file
 	if err != nil {
 		return nil, badInput(err)
 	}
+	// The node ascents keep the subgradient rule unless one is given: the
+	// families' default rules were chosen on plain runs, and the exact
+	// mode's figures were measured with the subgradient rule at nodes.
+	nodeRule := f.rule
+	if nodeRule == "" {
+		nodeRule = decomp.Rules()[0]
+	}
 	s := decomp.SearchSettings{NewMethod: newMethod, Time: f.time, Nodes: f.exact.nodes, MaxOpen: f.exact.maxOpen, MaxBytes: f.exact.bytes, Batch: f.exact.batch,
 		Workers: f.workers, Seed: f.seed, Prices: p.Prices}
 	if prog != nil {
@@ -198,7 +205,7 @@ func solveExact(ctx context.Context, stdout, stderr io.Writer, f *runFlags, file
 		}
 		rep.Rule, rep.WarmStart, rep.Stop = "exact", warm, sr.Status.String()
 		rep.withRounded(roundedBound(res.Bound, p.IntegralObjective, m.Sense()))
-		out := &exactReport{report: rep, Nodes: t.Nodes, OpenNodes: t.Open, NodeMemory: f.exact.bytes, NodeRule: f.rule, GlobalBound: num(sr.Bound), RootBound: num(sr.RootBound),
+		out := &exactReport{report: rep, Nodes: t.Nodes, OpenNodes: t.Open, NodeMemory: f.exact.bytes, NodeRule: nodeRule, GlobalBound: num(sr.Bound), RootBound: num(sr.RootBound),
 			Proved: sr.Proved, SearchStop: sr.Status.String(),
 			Tree: treeJSON{Depth: t.Depth, CutOff: t.CutOff, Infeasible: t.Infeasible, Solved: t.Solved, Branched: t.Branched,
 				Pruned: t.Pruned, Dropped: t.Dropped, Fixed: t.Fixed, RootFixed: t.RootFixed, Plans: t.Plans, Batch: f.exact.batch,
