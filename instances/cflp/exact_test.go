@@ -4,6 +4,7 @@ import (
 	"context"
 	"math"
 	"os"
+	"os/exec"
 	"path/filepath"
 	"testing"
 	"time"
@@ -127,4 +128,34 @@ func TestReducedCostFixingKeepsOptima(t *testing.T) {
 		t.Fatalf("only %d fixings checked: the check is too weak", seen)
 	}
 	t.Logf("%d site fixings checked", seen)
+}
+
+// TestExactCBC: on generated facility instances larger than brute force
+// reaches (12 to 20 sites, 40 to 60 customers), the exact search proves
+// the split-demand optimum that CBC (Debian's coin-or package, an outside
+// oracle) proves on the exported MPS model. CBC prints 8 decimals, so the
+// comparison allows 1e-7 relative.
+func TestExactCBC(t *testing.T) {
+	if _, err := exec.LookPath("cbc"); err != nil {
+		t.Skip("cbc not installed (apt-get install coinor-cbc); the oracle test is skipped")
+	}
+	if testing.Short() {
+		t.Skip("-short: the cbc comparison of the exact mode is skipped")
+	}
+	for seed := uint64(1); seed <= 3; seed++ {
+		in, err := Generate(8+4*int(seed), 30+10*int(seed), 1.6, 40+seed)
+		if err != nil {
+			t.Fatal(err)
+		}
+		opt := cbcOptimum(t, in, false)
+		res := exactSearch(t, &Model{In: in}, 2)
+		if !res.Proved || res.Plan == nil {
+			t.Fatalf("seed %d: not proved in 30 s: %+v", seed, res)
+		}
+		tol := 1e-7 * math.Max(1, opt)
+		if math.Abs(res.Plan.Value-opt) > tol || res.Bound > opt+tol {
+			t.Errorf("seed %d: proved %v (bound %v), CBC optimum %v", seed, res.Plan.Value, res.Bound, opt)
+		}
+		t.Logf("seed %d: %d sites x %d customers: proved %.4f, CBC %.4f, %d nodes", seed, len(in.Sites), len(in.Customers), res.Plan.Value, opt, res.Tree.Nodes)
+	}
 }

@@ -36,7 +36,7 @@ func (Family) Relaxations() []string { return []string{"slots"} }
 // Options lists index, machines, objective and relax.
 func (f Family) Options() []instances.Option {
 	return []instances.Option{
-		{Name: "index", Usage: "instance number in an OR-Library weighted tardiness file (1..125)", Kind: instances.Int,
+		{Name: "index", Usage: "instance number in an OR-Library weighted tardiness file", Kind: instances.Int,
 			Default: "1", Min: 1, Max: ORLibInstances, HasMin: true, HasMax: true},
 		{Name: "machines", Usage: "run the jobs of an OR-Library file on this many identical machines", Kind: instances.Int,
 			Default: "1", Min: 1, Max: 1000, HasMin: true, HasMax: true},
