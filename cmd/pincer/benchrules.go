@@ -202,3 +202,12 @@ func printMarkSummary(w io.Writer, results []*benchResult, marks []time.Duration
 	}
 	tw.Flush()
 }
+
+// benchLabel names one run of a bench row: the row's name, with the rule
+// when several rules run.
+func benchLabel(name, rule string, several bool) string {
+	if !several {
+		return name
+	}
+	return name + " " + rule
+}

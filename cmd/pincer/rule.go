@@ -36,12 +36,3 @@ func chooseRule(given string, m instances.Model, p *decomp.Problem) (rule, by st
 	}
 	return decomp.Rules()[0], ruleByDefault
 }
-
-// benchLabel names one run of a bench row: the row's name, with the rule
-// when several rules run.
-func benchLabel(name, rule string, several bool) string {
-	if !several {
-		return name
-	}
-	return name + " " + rule
-}

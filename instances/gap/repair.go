@@ -94,12 +94,8 @@ func (r *repairer) improveSettings(final bool) heuristics.ImproveSettings {
 // is the same for any worker count.
 func (r *repairer) searchSettings(rin *decomp.RepairInput) heuristics.SearchSettings {
 	n := r.in.Jobs
-	workers := rin.Workers
-	if workers <= 0 {
-		workers = runtime.GOMAXPROCS(0)
-	}
 	scale := min(1+r.idle/32, 16)
-	st := heuristics.SearchSettings{Moves: (n + 200) * scale, Rounds: 1, Tasks: 2, Workers: workers, Focus: r.focus()}
+	st := heuristics.SearchSettings{Moves: (n + 200) * scale, Rounds: 1, Tasks: 2, Workers: repairWorkers(rin), Focus: r.focus()}
 	switch {
 	case rin.Final:
 		st.Moves, st.Rounds = 2*n+1000, 2

@@ -297,17 +297,6 @@ func (r *repairer) feasible(x [][]float64) bool {
 // plan; the last repair does four times more. In the exact search
 // (nodeWork set) the root's repair (round 0) gets the base and every
 // other node nodeWork.
-// firstWork is the extra work of each attempt to reach a first plan:
-// firstPlanWork, but only nodeWork at the exact search's nodes past the
-// root, where a node without a plan in sight (an infeasible one, say)
-// must stay cheap.
-func (r *repairer) firstWork(in *decomp.RepairInput) int {
-	if r.nodeWork > 0 && in.Round > 0 {
-		return r.nodeWork
-	}
-	return r.firstPlanWork
-}
-
 func (r *repairer) budget(in *decomp.RepairInput) int {
 	if r.nodeWork > 0 {
 		if in.Round == 0 {
@@ -320,6 +309,17 @@ func (r *repairer) budget(in *decomp.RepairInput) int {
 		b *= 4
 	}
 	return b
+}
+
+// firstWork is the extra work of each attempt to reach a first plan:
+// firstPlanWork, but only nodeWork at the exact search's nodes past the
+// root, where a node without a plan in sight (an infeasible one, say)
+// must stay cheap.
+func (r *repairer) firstWork(in *decomp.RepairInput) int {
+	if r.nodeWork > 0 && in.Round > 0 {
+		return r.nodeWork
+	}
+	return r.firstPlanWork
 }
 
 func (s *state) clone() [][]float64 {
