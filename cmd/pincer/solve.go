@@ -135,6 +135,7 @@ func (f *runFlags) checkTables(m instances.Model) error {
 
 func newSolveCmd(chosen string) *cobra.Command {
 	var f runFlags
+	var prof profileFlags
 	cmd := &cobra.Command{
 		Use:   "solve --format FORMAT [flags] FILE",
 		Short: "Solve an instance and report plan, bound, gap and shadow prices",
@@ -166,11 +167,17 @@ func newSolveCmd(chosen string) *cobra.Command {
 					}
 				}
 			}
+			stop, err := prof.start()
+			if err != nil {
+				return err
+			}
+			defer stop()
 			_, err = solveModel(cmd.Context(), cmd.OutOrStdout(), cmd.ErrOrStderr(), &f, args[0], m)
 			return err
 		},
 	}
 	f.opts = familyOptions(cmd, &f.format, chosen)
+	prof.register(cmd)
 	f.register(cmd)
 	f.checkpoints.register(cmd)
 	f.warm.register(cmd)
