@@ -16,10 +16,14 @@ import (
 // Solve builds one, rounds change it, and a checkpoint saves it; Resume
 // continues from it. Encode it with EncodeCheckpoint.
 type State struct {
-	Round  int    // rounds made so far (the whole run, resumed or not)
-	Idle   int    // rounds in a row without a better bound or plan
-	Status Status // Running until a stop rule fires
-	Reason string // the method's reason when Status is MethodStopped
+	Round int // rounds made so far (the whole run, resumed or not)
+	Idle  int // rounds in a row without a better bound or plan
+	// IdleBound is the bound when Idle was last reset: under a time
+	// budget a better bound resets Idle only when it has moved far enough
+	// from it (see Settings).
+	IdleBound float64
+	Status    Status // Running until a stop rule fires
+	Reason    string // the method's reason when Status is MethodStopped
 
 	Prices     []float64 // prices for the next round
 	BestPrices []float64 // prices that gave Bound
@@ -134,6 +138,7 @@ type planRecord struct {
 type checkpointRecord struct {
 	InstanceHash, Settings string
 	Round, Idle            int
+	IdleBound              float64
 	Status                 int8
 	Reason                 string
 	Prices, BestPrices     []float64
@@ -192,7 +197,7 @@ func EncodeCheckpoint(c *Checkpoint, codec PlanCodec) ([]byte, error) {
 	}
 	rec := checkpointRecord{
 		InstanceHash: c.InstanceHash, Settings: c.Settings,
-		Round: st.Round, Idle: st.Idle, Status: int8(st.Status), Reason: st.Reason,
+		Round: st.Round, Idle: st.Idle, IdleBound: st.IdleBound, Status: int8(st.Status), Reason: st.Reason,
 		Prices: st.Prices, BestPrices: st.BestPrices, LastPrices: st.LastPrices, Bound: st.Bound, HasBound: st.HasBound,
 		PlanProved: st.PlanProved, PendingRound: st.PendingRound, HasPending: st.HasPending,
 		History: st.History, Method: st.Method, Repair: st.Repair, Elapsed: st.Elapsed,
@@ -251,7 +256,7 @@ func DecodeCheckpoint(data []byte, codec PlanCodec) (c *Checkpoint, err error) {
 		return nil, fmt.Errorf("%w: inconsistent state", ErrCheckpoint)
 	}
 	st := &State{
-		Round: rec.Round, Idle: rec.Idle, Status: Status(rec.Status), Reason: rec.Reason,
+		Round: rec.Round, Idle: rec.Idle, IdleBound: rec.IdleBound, Status: Status(rec.Status), Reason: rec.Reason,
 		Prices: rec.Prices, BestPrices: rec.BestPrices, LastPrices: rec.LastPrices, Bound: rec.Bound, HasBound: rec.HasBound,
 		PlanProved: rec.PlanProved, PendingRound: rec.PendingRound, HasPending: rec.HasPending,
 		History: rec.History, Method: rec.Method, Repair: rec.Repair, Elapsed: rec.Elapsed,
