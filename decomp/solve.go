@@ -796,9 +796,9 @@ func (r *runner) launchRepair(ctx context.Context, round int) {
 // waiting for the repair in flight: only when the time limit is the run's
 // only bound on rounds (no round limit) and no checkpoints are taken, so
 // that the run is not meant to be reproduced round for round, and the
-// repair has not finished yet. The
-// rounds then keep both cores busy while the repair runs, and the repair
-// is merged at the first repair round after it has finished. With a round
+// repair has not finished yet. The rounds then keep both cores busy while
+// the repair runs, and the repair is merged at the first repair round
+// after it has finished. With a round
 // limit every repair is merged at its fixed round, whatever the timing.
 func (r *runner) repairBusy() bool {
 	return r.pending != nil && len(r.pending) == 0 && r.s.Time > 0 && r.s.Rounds <= 0 && r.s.Checkpoint == nil
