@@ -99,13 +99,18 @@ func (sr *Searcher) Improve(ctx context.Context, assign []int, s ImproveSettings
 	// Polish the best assignment.
 	copy(srch.asg, srch.best)
 	srch.recompute()
-	srch.descend(1 << 30)
 	nodes := s.PairNodes
 	if nodes == 0 {
 		nodes = pairNodes
 	}
-	if nodes > 0 && !srch.cancelled() && srch.pairOpt(nodes) {
+	if nodes < 0 {
+		// a light repair: the descent only
 		srch.descend(1 << 30)
+	} else {
+		srch.polish()
+		if !srch.cancelled() && srch.pairOpt(nodes) {
+			srch.polish()
+		}
 	}
 	out := append([]int(nil), srch.best...)
 	v, _ := sr.p.Evaluate(out)

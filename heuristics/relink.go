@@ -277,15 +277,30 @@ func (s *search) relinkTask(ctx context.Context, md *model, from, guide []int, s
 	}
 	s.recompute()
 	s.record()
-	if st.Moves > 0 && m > 1 {
-		s.tabuSearch(st.Moves, st.Stall, false)
+	// On large instances a quarter of the moves go to the tabu search,
+	// which finds a feasible plan near the path's end, and the rest to the
+	// iterated local search with the exchange polish, which improves
+	// packed plans where the tabu search does not (see exchange.go); each
+	// of its rounds counts as ilsMoves moves.
+	tabuMoves, ilsRounds := st.Moves, 0
+	if s.n > fullWindow && st.Moves > 0 {
+		tabuMoves = st.Moves / 4
+		ilsRounds = (st.Moves - tabuMoves) / ilsMoves(s.n)
+	}
+	if tabuMoves > 0 && m > 1 {
+		s.tabuSearch(tabuMoves, st.Stall, false)
 	}
 	if !s.haveBest {
 		return taskResult{}
 	}
 	copy(s.asg, s.best)
 	s.recompute()
-	s.descend(1 << 30)
+	s.polish()
+	if ilsRounds > 0 && m > 1 {
+		s.ils(ilsRounds)
+		copy(s.asg, s.best)
+		s.recompute()
+	}
 	cost := 0.0 // summed afresh: the running sum drifts
 	for j, i := range s.best {
 		cost += md.cost[j*m+i]
@@ -308,3 +323,7 @@ func (s *search) shiftValue(j, i int) float64 {
 	v += s.alpha[i] * (s.excess(i, li+s.weight[ki]) - s.excess(i, li))
 	return v
 }
+
+// ilsMoves is the number of tabu moves one round of the iterated local
+// search counts as, in a task's move budget: about what it costs in time.
+func ilsMoves(n int) int { return max(n/2, 50) }

@@ -76,6 +76,9 @@ type search struct {
 	topRes  []int     // best few swap resources of the current item
 	topCost []float64
 
+	exch   *exchange // labels of the multi-exchange polish, made on first use
+	ilsBuf []int     // current assignment of the iterated local search
+
 	best     []int
 	bestCost float64
 	haveBest bool
