@@ -67,10 +67,29 @@ func hasBit(set []uint64, i int) bool { return set[i>>6]&(1<<(uint(i)&63)) != 0 
 
 func setBit(set []uint64, i int) { set[i>>6] |= 1 << (uint(i) & 63) }
 
+// touch marks resource i as changed.
+func (s *search) touch(i int) {
+	if !s.touched[i] {
+		s.touched[i] = true
+		s.touchedList = append(s.touchedList, i)
+	}
+}
+
+// untouch clears the marks of touch.
+func (s *search) untouch() {
+	for _, i := range s.touchedList {
+		s.touched[i] = false
+	}
+	s.touchedList = s.touchedList[:0]
+}
+
 // exchangeStep applies the cheapest improving exchange the search finds in
 // the current assignment, which must be feasible, and reports whether it
-// found one. The assignment stays feasible.
-func (s *search) exchangeStep() bool {
+// found one. The assignment stays feasible. With local, only exchanges that
+// start at an item of a resource marked by touch are searched (an exchange
+// through unchanged resources only was there before the change); either way
+// the marks are cleared, and the exchange applied marks its resources.
+func (s *search) exchangeStep(local bool) bool {
 	if s.exch == nil || len(s.exch.levels[0]) != s.n {
 		s.exch = newExchange(s.m, s.n)
 	}
@@ -82,9 +101,14 @@ func (s *search) exchangeStep() bool {
 	for j := 0; j < n; j++ {
 		lb := &l0[j]
 		lb.cost, lb.start, lb.pred = 0, int32(j), -1
+		if local && !s.touched[asg[j]] {
+			lb.cost = math.Inf(1)
+			continue
+		}
 		clear(lb.set)
 		setBit(lb.set, asg[j])
 	}
+	s.untouch()
 	for l := 0; l < exchangeDepth; l++ {
 		cur := x.levels[l]
 		var next []xlabel
@@ -99,7 +123,7 @@ func (s *search) exchangeStep() bool {
 				return false
 			}
 			lb := &cur[j]
-			if l > 0 && !(lb.cost < 0) {
+			if !(lb.cost < 0) && (l > 0 || lb.cost > 0) {
 				continue
 			}
 			a := asg[j]
@@ -182,14 +206,17 @@ func (s *search) exchangeStep() bool {
 
 // polish alternates the descent of shift and swap moves with improving
 // exchanges until neither finds one (or ctx is cancelled), and records the
-// result. The current assignment must be feasible.
-func (s *search) polish() {
+// result. The current assignment must be feasible. With local, the
+// exchanges start at resources changed since the marks of touch were last
+// cleared (the first search, and those after a descent that moved, look at
+// every change since).
+func (s *search) polish(local bool) {
 	for !s.cancelled() {
 		s.descend(1 << 30)
-		if s.n < 3 || s.m < 2 || !s.exchangeStep() {
+		if s.n < 3 || s.m < 2 || !s.exchangeStep(local) {
 			break
 		}
-		for !s.cancelled() && s.exchangeStep() {
+		for !s.cancelled() && s.exchangeStep(local) {
 		}
 		s.recompute()
 	}
@@ -213,6 +240,7 @@ func (s *search) ils(iters int) {
 	for it := 0; it < iters && !s.cancelled(); it++ {
 		copy(s.asg, cur)
 		s.recompute()
+		s.untouch()
 		for r, tries := 0, 0; r < ilsKicks && tries < 20*ilsKicks; tries++ {
 			j := s.rng.IntN(s.n)
 			opts := s.allowed(j)
@@ -226,7 +254,7 @@ func (s *search) ils(iters int) {
 			}
 		}
 		s.recompute()
-		s.polish()
+		s.polish(true)
 		if s.over == 0 && s.cost <= curCost+costEps(curCost) {
 			copy(cur, s.asg)
 			curCost = s.cost

@@ -31,14 +31,14 @@ func TestExchangeFindsCycle(t *testing.T) {
 	if s.cost != 15 {
 		t.Fatalf("the descent moved the plan to cost %v; the test needs a plan no shift or swap improves", s.cost)
 	}
-	if !s.exchangeStep() {
+	if !s.exchangeStep(false) {
 		t.Fatal("no exchange found; the three-item rotation improves the plan from 15 to 3")
 	}
 	s.recompute()
 	if want := []int{1, 2, 0}; s.asg[0] != want[0] || s.asg[1] != want[1] || s.asg[2] != want[2] || s.cost != 3 || s.over != 0 {
 		t.Fatalf("after the exchange: assignment %v, cost %v, %d over; want %v at 3, none over", s.asg, s.cost, s.over, want)
 	}
-	if s.exchangeStep() {
+	if s.exchangeStep(false) {
 		t.Fatalf("an exchange from the optimum (cost 3): %v", s.asg)
 	}
 }
@@ -62,7 +62,7 @@ func TestExchangeFindsPath(t *testing.T) {
 	if s.cost != 14 {
 		t.Fatalf("the descent moved the plan to cost %v; the test needs a plan no shift or swap improves", s.cost)
 	}
-	if !s.exchangeStep() {
+	if !s.exchangeStep(false) {
 		t.Fatal("no exchange found; x to B and y to C improves the plan from 14 to 7")
 	}
 	s.recompute()
@@ -99,7 +99,7 @@ func TestExchangeProperties(t *testing.T) {
 		s := newSearch(md.m, md.n)
 		s.reset(context.Background(), md, start, rng)
 		prev, _ := p.Evaluate(start)
-		for steps := 0; s.exchangeStep(); steps++ {
+		for steps := 0; s.exchangeStep(false); steps++ {
 			v, ok := p.Evaluate(s.asg)
 			if !ok {
 				t.Fatalf("step %d: infeasible assignment %v", steps, s.asg)
@@ -117,7 +117,7 @@ func TestExchangeProperties(t *testing.T) {
 		}
 		s.reset(context.Background(), md, start, rng)
 		before, _ := p.Evaluate(start)
-		s.polish()
+		s.polish(false)
 		v, ok := p.Evaluate(s.best)
 		if !ok || v > before || v < optV-1e-9 || math.Abs(v-s.bestCost) > 1e-6 {
 			t.Fatalf("polish: %v (feasible %v, recorded %v) from %v, optimum %v", v, ok, s.bestCost, before, optV)

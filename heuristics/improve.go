@@ -107,9 +107,9 @@ func (sr *Searcher) Improve(ctx context.Context, assign []int, s ImproveSettings
 		// a light repair: the descent only
 		srch.descend(1 << 30)
 	} else {
-		srch.polish()
+		srch.polish(false)
 		if !srch.cancelled() && srch.pairOpt(nodes) {
-			srch.polish()
+			srch.polish(false)
 		}
 	}
 	out := append([]int(nil), srch.best...)

@@ -295,7 +295,7 @@ func (s *search) relinkTask(ctx context.Context, md *model, from, guide []int, s
 	}
 	copy(s.asg, s.best)
 	s.recompute()
-	s.polish()
+	s.polish(false)
 	if ilsRounds > 0 && m > 1 {
 		s.ils(ilsRounds)
 		copy(s.asg, s.best)

@@ -78,6 +78,11 @@ type search struct {
 
 	exch   *exchange // labels of the multi-exchange polish, made on first use
 	ilsBuf []int     // current assignment of the iterated local search
+	// touched marks the resources whose items changed since the marks
+	// were last cleared, listed in touchedList (for the local exchange
+	// search of the iterated local search)
+	touched     []bool
+	touchedList []int
 
 	best     []int
 	bestCost float64
@@ -94,6 +99,7 @@ func newSearch(m, n int) *search {
 		pos:     make([]int, n),
 		order:   make([]int, n),
 		best:    make([]int, n),
+		touched: make([]bool, m),
 		cands:   pool{size: ejectStarts},
 		win:     make([]int, 0, maxWindow),
 		exc:     make([]float64, m),
@@ -218,6 +224,8 @@ func (s *search) shift(j, i int) {
 	s.pos[j] = len(s.members[i])
 	s.members[i] = append(s.members[i], j)
 	s.tabu[j*s.m+a] = s.iter + int32(s.tenure())
+	s.touch(a)
+	s.touch(i)
 }
 
 func (s *search) setLoad(i int, l float64) {
