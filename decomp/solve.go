@@ -89,7 +89,9 @@ func (s Status) Early() bool {
 // a hundredth of the open gap since the last progress (State.IdleBound). The
 // in-round repairs then see RepairInput.Stalled (a repairer may spend
 // more per call) and run on the round's goroutine, so that the rounds pause
-// while they search (same merge points, same outcome). Such a run ends at
+// while they search (same merge points, same outcome). Once stalled, only
+// such a bound move ends the stall: better plans found by the search do not
+// hand the cores back to the rounds. Such a run ends at
 // its limit, or earlier only when the gap closes, the plan is proved or
 // the prices settle.
 //
@@ -475,7 +477,10 @@ func (r *runner) round(ctx, parent context.Context) error {
 		}
 		r.launchRepair(ctx, st.Round)
 	}
-	if planImproved || (improved && r.boundMoved()) {
+	// Once the rounds have stalled under a time budget, a better plan is
+	// the plan search at work: it keeps the cores (the rounds had stopped
+	// helping), and only a bound that moves gives them back to the rounds.
+	if (planImproved && !r.stalled()) || (improved && r.boundMoved()) {
 		st.Idle = 0
 		st.IdleBound = st.Bound
 	} else {

@@ -40,7 +40,10 @@ type elitePlan struct {
 // defaults. All budgets count moves, so a search is reproducible.
 type SearchSettings struct {
 	// Moves is the number of tabu moves of each task; 0 means 10 per item
-	// plus 2000.
+	// plus 2000. With Focus, a task whose narrowed model keeps fewer pairs
+	// than the widest task's gets more moves in that proportion (at most
+	// 4 times as many), so that tasks run side by side end at about the
+	// same time instead of leaving a core idle.
 	Moves int
 	// Stall is the number of moves without a better plan after which a
 	// task goes back to its best plan; 0 means 3 per item plus 100.
@@ -61,6 +64,10 @@ type SearchSettings struct {
 	// plans found are feasible for the whole assignment either way.
 	Focus []int
 }
+
+// maxMoveScale bounds the extra moves of a narrowed task (see
+// SearchSettings.Moves).
+const maxMoveScale = 4
 
 // elitePool is the size of the pool of elite plans.
 const elitePool = 10
@@ -162,6 +169,7 @@ func (sr *Searcher) PlanSearch(ctx context.Context, st SearchSettings, seed uint
 	res := make([]taskResult, st.Tasks)
 	type job struct{ from, guide []int }
 	jobs := make([]job, st.Tasks)
+	tms := make([]*model, st.Tasks)
 	for r := 0; r < st.Rounds && ctx.Err() == nil; r++ {
 		pool := sr.pool(md)
 		if len(pool) == 0 {
@@ -183,12 +191,24 @@ func (sr *Searcher) PlanSearch(ctx context.Context, st SearchSettings, seed uint
 				jobs[t].guide = pool[b].asg
 			}
 		}
-		run := func(t int) {
-			tm := md
+		// The tasks' models first: a task's moves cost about in
+		// proportion to the pairs its model keeps, so narrower tasks get
+		// more moves (see SearchSettings.Moves) and the tasks of a merge
+		// point take about as long.
+		widest := 0
+		for t := range jobs {
+			tms[t] = md
 			if len(st.Focus) > 0 {
-				tm = sr.narrow(md, st.Focus[t%len(st.Focus)], &sr.tmods[t], jobs[t].from)
+				tms[t] = sr.narrow(md, st.Focus[t%len(st.Focus)], &sr.tmods[t], jobs[t].from)
 			}
-			res[t] = sr.tasks[t].relinkTask(ctx, tm, jobs[t].from, jobs[t].guide, st, rngs[t])
+			widest = max(widest, len(tms[t].opt))
+		}
+		run := func(t int) {
+			ts := st
+			if k := len(tms[t].opt); len(st.Focus) > 0 && k > 0 && st.Moves > 0 {
+				ts.Moves = int(float64(st.Moves) * min(float64(widest)/float64(k), maxMoveScale))
+			}
+			res[t] = sr.tasks[t].relinkTask(ctx, tms[t], jobs[t].from, jobs[t].guide, ts, rngs[t])
 		}
 		if st.Workers == 1 {
 			for t := range jobs {
