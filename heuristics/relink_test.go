@@ -10,12 +10,17 @@ import (
 // TestPlanSearchNeverWorseAndWorkerFree: on random instances PlanSearch
 // returns a feasible plan that is never worse than the best plan offered to
 // its pool, and the same plan whether its tasks run on 1 or 3 goroutines,
-// with and without a restriction from pair bounds and narrowed tasks.
+// with and without a restriction from pair bounds and narrowed tasks (whose
+// move budgets then differ), on instances small enough for the tabu search
+// alone and large enough for the iterated local search.
 func TestPlanSearchNeverWorseAndWorkerFree(t *testing.T) {
 	rng := rand.New(rand.NewPCG(3, 5))
-	for trial := 0; trial < 6; trial++ {
-		m, n := 6+trial, 40+10*trial
-		p := &Assignment{Capacity: make([]float64, m), Maximise: trial%3 == 2}
+	for trial := 0; trial < 8; trial++ {
+		m, n, moves := 6+trial, 40+10*trial, 300
+		if trial >= 6 {
+			n, moves = fullWindow+60, 1500 // past fullWindow: tabu and iterated local search
+		}
+		p := &Assignment{Capacity: make([]float64, m), Maximise: trial%3 == 2 || trial == 7}
 		for i := 0; i < m; i++ {
 			c, w := make([]float64, n), make([]float64, n)
 			sum := 0.0
@@ -45,7 +50,7 @@ func TestPlanSearchNeverWorseAndWorkerFree(t *testing.T) {
 			if v, _ := p.Evaluate(second); (p.Maximise && v > offered) || (!p.Maximise && v < offered) {
 				offered = v
 			}
-			st := SearchSettings{Moves: 300, Rounds: 2, Tasks: 2, Workers: workers}
+			st := SearchSettings{Moves: moves, Rounds: 2, Tasks: 2, Workers: workers}
 			if trial%2 == 1 {
 				// Pair bounds from knapsack values below (above, when
 				// maximising) every knapsack's optimum: they only weaken
