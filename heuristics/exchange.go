@@ -86,9 +86,12 @@ func (s *search) untouch() {
 // exchangeStep applies the cheapest improving exchange the search finds in
 // the current assignment, which must be feasible, and reports whether it
 // found one. The assignment stays feasible. With local, only exchanges that
-// start at an item of a resource marked by touch are searched (an exchange
-// through unchanged resources only was there before the change); either way
-// the marks are cleared, and the exchange applied marks its resources.
+// start at an item of a resource marked by touch are searched: after a
+// change to an assignment no exchange improved, an improving exchange must
+// pass through a changed resource, and a cycle can be started at any of its
+// items, but a path through a changed resource that starts elsewhere is
+// missed (a heuristic narrowing, for speed). Either way the marks are
+// cleared, and the exchange applied marks its resources.
 func (s *search) exchangeStep(local bool) bool {
 	if s.exch == nil || len(s.exch.levels[0]) != s.n {
 		s.exch = newExchange(s.m, s.n)

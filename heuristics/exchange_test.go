@@ -43,6 +43,37 @@ func TestExchangeFindsCycle(t *testing.T) {
 	}
 }
 
+// TestLocalExchangeStartsAtTouched: the local exchange search of the
+// rotation case above finds nothing while no resource is marked, and the
+// rotation once one of its resources is (a cycle can start at any of its
+// items); it clears the marks either way.
+func TestLocalExchangeStartsAtTouched(t *testing.T) {
+	p := &Assignment{
+		Cost:     [][]float64{{5, 20, 1}, {1, 5, 20}, {20, 1, 5}},
+		Weight:   [][]float64{{10, 10, 10}, {10, 10, 10}, {10, 10, 10}},
+		Capacity: []float64{10, 10, 10},
+	}
+	md := compile(p)
+	s := newSearch(md.m, md.n)
+	s.reset(context.Background(), md, []int{0, 1, 2}, rand.New(rand.NewPCG(1, 1)))
+	s.untouch()
+	if s.exchangeStep(true) {
+		t.Fatalf("a local exchange with no resource marked: %v", s.asg)
+	}
+	s.touch(1)
+	if !s.exchangeStep(true) {
+		t.Fatal("no local exchange from resource B; the rotation through it improves 15 to 3")
+	}
+	s.recompute()
+	if s.cost != 3 || s.over != 0 {
+		t.Fatalf("after the local exchange: assignment %v, cost %v, %d over; want cost 3, none over", s.asg, s.cost, s.over)
+	}
+	// the rotation marked its three resources; the next search clears them
+	if len(s.touchedList) != 3 || s.exchangeStep(true) || len(s.touchedList) != 0 {
+		t.Fatalf("marks after the exchange: %v (want 3, then none and no exchange from the optimum)", s.touchedList)
+	}
+}
+
 // TestExchangeFindsPath: a path exchange into the one resource with room.
 // Item x (on A) is much cheaper on B, which is full with y; y costs a
 // little more on C, which has room. Worked by hand: x to B does not fit, y

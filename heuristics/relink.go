@@ -205,7 +205,7 @@ func (sr *Searcher) PlanSearch(ctx context.Context, st SearchSettings, seed uint
 		}
 		run := func(t int) {
 			ts := st
-			if k := len(tms[t].opt); len(st.Focus) > 0 && k > 0 && st.Moves > 0 {
+			if k := len(tms[t].opt); k > 0 && st.Moves > 0 {
 				ts.Moves = int(float64(st.Moves) * min(float64(widest)/float64(k), maxMoveScale))
 			}
 			res[t] = sr.tasks[t].relinkTask(ctx, tms[t], jobs[t].from, jobs[t].guide, ts, rngs[t])
