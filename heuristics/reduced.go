@@ -280,9 +280,9 @@ func (sr *Searcher) Restrict(incumbent []int, value, step float64) (allowed int,
 			}
 		}
 	}
-	rm := &model{m: m, n: n, cost: cost, weight: md.weight, limit: md.limit, opt: sr.ropt[:0]}
+	rm := &model{m: m, n: n, cost: cost, weight: md.weight, limit: md.limit, opt: sr.ropt[:0], bits: sr.rbits}
 	rm.index()
-	sr.ropt = rm.opt
+	sr.ropt, sr.rbits = rm.opt, rm.bits
 	sr.active = rm
 	// rank each item's allowed pairs by bound
 	if cap(sr.ranked) < len(rm.opt) {
@@ -337,7 +337,7 @@ func (sr *Searcher) narrow(md *model, focus int, buf *model, plans ...[]int) *mo
 			}
 		}
 	}
-	*buf = model{m: m, n: n, cost: cost, weight: md.weight, limit: md.limit, opt: buf.opt[:0]}
+	*buf = model{m: m, n: n, cost: cost, weight: md.weight, limit: md.limit, opt: buf.opt[:0], bits: buf.bits}
 	buf.index()
 	return buf
 }

@@ -290,7 +290,6 @@ func (s *search) partners(j, a int, f func(k, b int)) {
 			s.topCost[q], s.topCost[q-1] = s.topCost[q-1], s.topCost[q]
 		}
 	}
-	cost := s.model.cost
 	for _, b := range s.topRes {
 		// swapPartners items of b allowed on a, from a random offset: on a
 		// narrowed model most items of b may not go to a, so they are
@@ -302,7 +301,11 @@ func (s *search) partners(j, a int, f func(k, b int)) {
 		}
 		off := s.rng.IntN(len(mb))
 		for q, got := 0, 0; q < len(mb) && got < swapPartners; q++ {
-			if k := mb[(off+q)%len(mb)]; cost[k*m+a] <= maxFinite {
+			p := off + q
+			if p >= len(mb) {
+				p -= len(mb)
+			}
+			if k := mb[p]; s.may(k, a) {
 				f(k, b)
 				got++
 			}

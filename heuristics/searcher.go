@@ -26,6 +26,7 @@ type Searcher struct {
 	active     *model    // restricted model of the searches, nil for none
 	restricted []float64 // its cost buffer
 	ropt       []int32   // its allowed lists
+	rbits      []uint64  // and their bit sets
 	ranked     []int32   // per item (CSR of active), allowed resources by bound
 
 	// plan search (relink.go)
