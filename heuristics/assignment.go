@@ -114,9 +114,7 @@ type model struct {
 }
 
 // may reports whether item j may go to resource i.
-func (md *model) may(j, i int) bool {
-	return md.bits[j*md.words+i>>6]&(1<<(uint(i)&63)) != 0
-}
+func (md *model) may(j, i int) bool { return hasBit(md.bits[j*md.words:], i) }
 
 // allowed lists the resources item j may go to, ascending.
 func (md *model) allowed(j int) []int32 { return md.opt[md.ostart[j]:md.ostart[j+1]] }
@@ -135,7 +133,7 @@ func (md *model) index() {
 		for i := 0; i < md.m; i++ {
 			if md.cost[j*md.m+i] <= maxFinite {
 				md.opt = append(md.opt, int32(i))
-				md.bits[j*md.words+i>>6] |= 1 << (uint(i) & 63)
+				setBit(md.bits[j*md.words:], i)
 			}
 		}
 		md.ostart[j+1] = int32(len(md.opt))
